@@ -1,0 +1,189 @@
+/**
+ * Pulse drive derived from the audio, for the pulse scheme: the coil's bridge is gated on for a
+ * short on-time at instants taken from the music, and the on-time follows the music's level.
+ *
+ * Two steps, so a gain search does not touch the samples again:
+ * 1. `zeroCrossingEvents` / `pitchLockedEvents` find the candidate pulse instants and the source
+ *    level at each (gain-independent, one pass).
+ * 2. `pulsesAtGain` turns them into pulses for one gain, applying the driver's limits.
+ *
+ * On-time law (our convention, stated in docs/models.md): demanded on-time = maxOnTimeS · g · level,
+ * so at 0 dB gain a full-scale event takes the on-time to its maximum. Limits, in this order:
+ * - max on-time: a longer demand is cut to maxOnTimeS (counted as `onTimeClamped`);
+ * - min off-time: a pulse that would start less than minOffTimeS after the previous one ended is
+ *   dropped (counted as `offTimeDropped`);
+ * - max duty: on-time ≤ maxDuty · (start − previous start), the duty of one pulse period
+ *   (counted as `dutyClamped`). The first pulse has no period yet and is bounded by max on-time alone.
+ * Pulse interrupters in the trade limit these same three figures (common practice).
+ */
+
+/** Candidate pulse instants and the source level at each; independent of gain. */
+export interface PulseEvents {
+  mode: 'zero-crossing' | 'pitch-locked';
+  /** Event times, s, ascending. */
+  timeS: Float64Array;
+  /** Source level at each event, linear full scale (peak |x| of the cycle that starts there). */
+  level: Float32Array;
+  /** Clip length, s. */
+  durationS: number;
+}
+
+/** Driver limits on pulses (the driver profile's `pulse` block). */
+export interface PulseLimits {
+  maxOnTimeS: number;
+  minOffTimeS: number;
+  maxDuty: number;
+}
+
+/** Pulses for one gain. */
+export interface PulseTrain {
+  startS: Float64Array;
+  onS: Float64Array;
+  count: number;
+  /** Pulses whose demanded on-time exceeded maxOnTimeS. */
+  onTimeClamped: number;
+  /** Events dropped because they came sooner than minOffTimeS after the previous pulse ended. */
+  offTimeDropped: number;
+  /** Pulses shortened to respect maxDuty. */
+  dutyClamped: number;
+  /** Σ on-time, s. */
+  totalOnS: number;
+  /** Events considered (non-zero demanded on-time). */
+  events: number;
+}
+
+/**
+ * Upward zero crossings of `signal` with a Schmitt trigger of ±hysteresis (so noise near zero does
+ * not chatter): an event fires when the signal rises above +h after having been below −h. The
+ * level of each event is the peak |x| until the next event (the cycle's peak).
+ *
+ * @param hysteresis  linear full scale, default 1e-3 (−60 dBFS): quieter signals make no pulses
+ * @example zeroCrossingEvents(sine100Hz, 48000).timeS.length // ≈ 100 per second
+ */
+export function zeroCrossingEvents(
+  signal: Float32Array,
+  sampleRate: number,
+  opts: { hysteresis?: number } = {},
+): PulseEvents {
+  const h = opts.hysteresis ?? 1e-3;
+  if (!(sampleRate > 0)) throw new RangeError(`zeroCrossingEvents: sampleRate must be > 0 Hz, got ${sampleRate}`);
+  if (!(h > 0 && h < 1)) throw new RangeError(`zeroCrossingEvents: hysteresis must be in (0, 1), got ${h}`);
+  const times: number[] = [];
+  const levels: number[] = [];
+  let armed = false;
+  let peak = 0;
+  for (let i = 0; i < signal.length; i++) {
+    const x = signal[i];
+    const a = x < 0 ? -x : x;
+    if (a > peak) peak = a;
+    if (x < -h) armed = true;
+    else if (armed && x > h) {
+      armed = false;
+      if (times.length > 0) levels[levels.length - 1] = peak;
+      // Interpolate the crossing of zero between the previous sample and this one.
+      const prev = i > 0 ? signal[i - 1] : 0;
+      const frac = prev < 0 && x !== prev ? -prev / (x - prev) : 0;
+      times.push((i - 1 + frac) / sampleRate);
+      levels.push(0);
+      peak = a;
+    }
+  }
+  if (times.length > 0) levels[levels.length - 1] = peak;
+  return {
+    mode: 'zero-crossing',
+    timeS: Float64Array.from(times),
+    level: Float32Array.from(levels),
+    durationS: signal.length / sampleRate,
+  };
+}
+
+/**
+ * Pulses locked to a pitch track: an event fires at each whole cycle of the tracked pitch while the
+ * hop is voiced (f0 finite), phase-continuous across hops; unvoiced hops make no pulses. The level
+ * of an event is the frame peak |x| (from per-frame min/max) at its time.
+ *
+ * @param f0Hz  pitch per hop (NaN = unvoiced), hops of `hopS` starting at t = 0
+ * @param framePeak  per-frame peak |x| on a grid of `frameS`, linear full scale
+ */
+export function pitchLockedEvents(
+  f0Hz: Float32Array,
+  hopS: number,
+  framePeak: Float32Array,
+  frameS: number,
+  durationS: number,
+): PulseEvents {
+  if (!(hopS > 0 && frameS > 0)) throw new RangeError(`pitchLockedEvents: hopS and frameS must be > 0 s, got ${hopS}, ${frameS}`);
+  const times: number[] = [];
+  const levels: number[] = [];
+  // Cycles left until the next event; carried across hops so the train stays phase-continuous
+  // when the pitch changes, reset when the pitch track drops out.
+  let remainingCycles = 0;
+  for (let j = 0; j < f0Hz.length; j++) {
+    const f = f0Hz[j];
+    const t0 = j * hopS;
+    if (!Number.isFinite(f) || f <= 0) {
+      remainingCycles = 0;
+      continue;
+    }
+    const t1 = Math.min(t0 + hopS, durationS);
+    let m = 0; // events are at t0 + (remainingCycles + m)/f: no running-sum drift within a hop
+    for (let t = t0 + remainingCycles / f; t < t1; t = t0 + (remainingCycles + ++m) / f) {
+      times.push(t);
+      const k = Math.min(framePeak.length - 1, Math.floor(t / frameS));
+      levels.push(k >= 0 ? framePeak[k] : 0);
+    }
+    remainingCycles = remainingCycles + m - (t1 - t0) * f;
+  }
+  return { mode: 'pitch-locked', timeS: Float64Array.from(times), level: Float32Array.from(levels), durationS };
+}
+
+/**
+ * Pulses for gain `gain` (linear amplitude factor), applying the limits in the order of the module
+ * comment. Events whose demanded on-time is 0 are skipped. Pass `out` (from a previous call with
+ * the same events) to reuse buffers in a gain search.
+ *
+ * @example pulsesAtGain(events, 1, { maxOnTimeS: 2e-4, minOffTimeS: 5e-4, maxDuty: 0.1 })
+ */
+export function pulsesAtGain(events: PulseEvents, gain: number, limits: PulseLimits, out?: PulseTrain): PulseTrain {
+  const n = events.timeS.length;
+  const startS = out && out.startS.length >= n ? out.startS : new Float64Array(n);
+  const onS = out && out.onS.length >= n ? out.onS : new Float64Array(n);
+  const { maxOnTimeS, minOffTimeS, maxDuty } = limits;
+  let count = 0;
+  let onTimeClamped = 0;
+  let offTimeDropped = 0;
+  let dutyClamped = 0;
+  let totalOnS = 0;
+  let considered = 0;
+  let prevStart = -Infinity;
+  let prevEnd = -Infinity;
+  for (let i = 0; i < n; i++) {
+    let on = maxOnTimeS * gain * events.level[i];
+    if (!(on > 0)) continue;
+    considered++;
+    const t = events.timeS[i];
+    if (on > maxOnTimeS) {
+      on = maxOnTimeS;
+      onTimeClamped++;
+    }
+    if (t < prevEnd + minOffTimeS) {
+      offTimeDropped++;
+      continue;
+    }
+    const dutyCap = maxDuty * (t - prevStart); // Infinity for the first pulse
+    if (on > dutyCap) {
+      on = dutyCap;
+      dutyClamped++;
+    }
+    // A pulse cannot run past the end of the clip.
+    on = Math.min(on, Math.max(0, events.durationS - t));
+    if (on <= 0) continue;
+    startS[count] = t;
+    onS[count] = on;
+    count++;
+    totalOnS += on;
+    prevStart = t;
+    prevEnd = t + on;
+  }
+  return { startS, onS, count, onTimeClamped, offTimeDropped, dutyClamped, totalOnS, events: considered };
+}
