@@ -1,0 +1,156 @@
+import { readFile } from 'node:fs/promises';
+import { resolve } from 'node:path';
+import { InputError } from '../../../shared/errors.ts';
+import { DEMO_COIL_NAMES, DEMO_COILS } from '../../../shared/demo/coils.ts';
+import { analyzeCoil, type CoilDriveContext, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
+import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
+import { msToS } from '../../../shared/units.ts';
+import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
+import { EXIT_OK, type CliIo, type Command } from '../io.ts';
+
+const USAGE =
+  'coilcue coil <coil.json> | --demo <name> [--json] [--supply-v <V>] [--rail-current-a <A>] [--on-time-ms <ms>] [--input-power-w <W>] [--wire-temp-c <°C>]';
+
+const PREFIXES: ReadonlyArray<[number, string]> = [
+  [-15, 'f'], [-12, 'p'], [-9, 'n'], [-6, 'µ'], [-3, 'm'], [0, ''], [3, 'k'], [6, 'M'], [9, 'G'],
+];
+
+/**
+ * Engineering notation with three significant figures and an SI prefix: 0.0287 H → "28.7 mH",
+ * 6.1e-12 F → "6.10 pF", 380400 Hz → "380 kHz". Null → "—". Exported for tests.
+ */
+export function formatEng(value: number | null, unit: string): string {
+  if (value === null || !Number.isFinite(value)) return '—';
+  if (value === 0) return `0 ${unit}`;
+  let exp = Math.floor(Math.log10(Math.abs(value)) / 3) * 3;
+  exp = Math.min(9, Math.max(-15, exp));
+  let mant = Number((value / 10 ** exp).toPrecision(3));
+  if (Math.abs(mant) >= 1000 && exp < 9) {
+    exp += 3;
+    mant = Number((value / 10 ** exp).toPrecision(3));
+  }
+  const prefix = PREFIXES.find(([e]) => e === exp)?.[1] ?? '';
+  const digits = Math.abs(mant) >= 100 ? 0 : Math.abs(mant) >= 10 ? 1 : 2;
+  return `${mant.toFixed(digits)} ${prefix}${unit}`;
+}
+
+const pct = (x: number | null): string => (x === null ? '—' : `${x >= 0 ? '+' : ''}${x.toFixed(1)} %`);
+const num3 = (x: number | null): string => (x === null ? '—' : Math.abs(x) >= 1000 ? Math.round(x).toString() : x.toPrecision(3));
+
+/** The human-readable report: one figure per line, units shown, alternatives in brackets. */
+export function formatCoilReport(r: CoilReport): string {
+  const s = r.secondary;
+  const m = s.selfCapacitanceModels;
+  const row = (label: string, value: string): string => `  ${label.padEnd(40)} ${value}`;
+  const lines = [
+    `Coil "${r.name}"`,
+    '',
+    `Secondary: ${s.turns} turns, D ${formatEng(s.meanDiameterM, 'm')} (through wire centres), l ${formatEng(s.windingLengthM, 'm')}, l/D ${num3(s.lengthOverDiameter)}`,
+    row('inductance (current sheet, Nagaoka)', `${formatEng(s.inductanceH, 'H')}   [Lundin ${formatEng(s.inductanceLundinH, 'H')}, Wheeler ${formatEng(s.inductanceWheelerH, 'H')}, turn sum ${formatEng(s.inductanceTurnSumH, 'H')}]`),
+    row('Nagaoka coefficient', num3(s.nagaokaK)),
+    row('wire length', formatEng(s.wireLengthM, 'm')),
+    row('DC resistance at 20 °C', formatEng(s.dcResistanceOhm, 'Ω')),
+    row(`DC resistance at ${s.wireTempC} °C`, formatEng(s.dcResistanceHotOhm, 'Ω')),
+    row('skin depth at resonance', formatEng(s.skinDepthM, 'm')),
+    row('AC resistance (skin effect only)', `${formatEng(s.acResistanceOhm, 'Ω')}   [×${num3(s.acToDcRatio)} DC]`),
+    row("self-capacitance (Medhurst's table)", `${formatEng(s.selfCapacitanceF, 'F')}   [Radiotron fit ${formatEng(m.radiotronFitF, 'F')}, Knight air-core ${formatEng(m.knightAirCoreF, 'F')}; spread ${s.selfCapacitanceSpreadPercent.toFixed(0)} %]`),
+    '',
+    `Top load: ${r.topLoad.shape}`,
+    row('capacitance (isolated)', r.topLoad.shape === 'none' ? '—' : formatEng(r.topLoad.capacitanceF, 'F')),
+    row('extra capacitance', formatEng(r.extraCapacitanceF, 'F')),
+    row('total capacitance', formatEng(r.totalCapacitanceF, 'F')),
+    '',
+    'Resonance and losses',
+    row('resonance', `${formatEng(r.resonanceHz, 'Hz')}   (${r.resonanceMeasuredHz === null ? 'computed' : 'measured'})`),
+    row('computed resonance', `${formatEng(r.resonanceComputedHz, 'Hz')}   [by model: ${formatEng(r.resonanceByModelHz.medhurstTableHz, 'Hz')}, ${formatEng(r.resonanceByModelHz.radiotronFitHz, 'Hz')}, ${formatEng(r.resonanceByModelHz.knightAirCoreHz, 'Hz')}]`),
+    row('measured vs computed', pct(r.resonanceDiscrepancyPercent)),
+    row(
+      'quality factor Q',
+      r.qualityFactorMeasured === null
+        ? `${num3(r.qualityFactor)}   (computed: an upper bound)`
+        : `${num3(r.qualityFactor)}   (measured; computed upper bound ${num3(r.qualityFactorComputed)})`,
+    ),
+    row('modulation corner f0/(2Q)', formatEng(r.modulationCornerHz, 'Hz')),
+    row('ring-up time constant Q/(π f0)', formatEng(r.ringUpTauS, 's')),
+    '',
+    'Primary and coupling',
+    row('primary inductance (current sheet)', formatEng(r.primary.inductanceH, 'H')),
+    row('mutual inductance (Maxwell, turn pairs)', formatEng(r.mutualInductanceH, 'H')),
+    row('coupling k', num3(r.couplingK)),
+    '',
+    'Voltage and clearance (upper bounds, not promises)',
+    row('energy per longest on-time', formatEng(r.voltage.energyJ, 'J')),
+    row('top voltage bound √(2E/C)', formatEng(r.voltage.topVoltageBoundV, 'V')),
+    row('breakdown gap at 3 kV/mm', formatEng(r.voltage.breakdownGapM, 'm')),
+    row('arc reach (1.7 in·√W rule)', formatEng(r.voltage.arcReachM, 'm')),
+    row(`keep-out distance (×${r.voltage.safetyFactor})`, formatEng(r.keepOutM, 'm')),
+    '',
+    'Notes',
+    ...r.notes.map((n) => `  - ${n}`),
+    '',
+    'Cautions',
+    ...r.cautions.map((c) => `  ! ${c}`),
+    '',
+  ];
+  return lines.join('\n');
+}
+
+async function readProfileJson(path: string, cwd: string): Promise<unknown> {
+  const full = resolve(cwd, path);
+  let text: string;
+  try {
+    text = await readFile(full, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' ? 'permission denied' : (code ?? 'unreadable');
+    throw new InputError('file-not-found', `cannot read coil profile "${path}" (${why}); check the path.`);
+  }
+  try {
+    return JSON.parse(text);
+  } catch (e) {
+    const msg = e instanceof Error ? e.message : String(e);
+    throw new InputError('bad-json', `coil profile "${path}" is not valid JSON (${msg}); fix the file or start from a demo: coilcue coil --demo ${DEMO_COIL_NAMES[0]} --json.`);
+  }
+}
+
+/** `coilcue coil`: analyses a coil profile and prints a table (or JSON with --json). */
+export const coilCommand: Command = {
+  summary: 'model a coil: inductance, capacitance, resonance, Q, coupling, voltage bound',
+  usage: USAGE,
+  async run(argv: string[], io: CliIo): Promise<number> {
+    const { values, positionals } = parseCommandArgs(
+      argv,
+      {
+        json: { type: 'boolean' },
+        demo: { type: 'string' },
+        'supply-v': { type: 'string' },
+        'rail-current-a': { type: 'string' },
+        'on-time-ms': { type: 'string' },
+        'input-power-w': { type: 'string' },
+        'wire-temp-c': { type: 'string' },
+      },
+      USAGE,
+    );
+    const demo = choiceFlag(values.demo, 'demo', DEMO_COIL_NAMES);
+    if (demo !== undefined && positionals.length > 0) throw new InputError('bad-arguments', `give a profile file or --demo, not both. Usage: ${USAGE}`);
+    if (demo === undefined && positionals.length !== 1) {
+      throw new InputError('bad-arguments', `give exactly one coil profile file (or --demo ${DEMO_COIL_NAMES.join('|')}). Usage: ${USAGE}`);
+    }
+    const drive: CoilDriveContext = {};
+    const supply = numberFlag(values['supply-v'], 'supply-v', { min: 0 });
+    const rail = numberFlag(values['rail-current-a'], 'rail-current-a', { min: 0 });
+    const onMs = numberFlag(values['on-time-ms'], 'on-time-ms', { min: 0 });
+    const power = numberFlag(values['input-power-w'], 'input-power-w', { min: 0 });
+    const temp = numberFlag(values['wire-temp-c'], 'wire-temp-c', { min: -50, max: 200 });
+    if (supply !== undefined) drive.supplyVoltageV = supply;
+    if (rail !== undefined) drive.fullRailCurrentA = rail;
+    if (onMs !== undefined) drive.pulseOnTimeS = msToS(onMs);
+    if (power !== undefined) drive.inputPowerW = power;
+    if (temp !== undefined) drive.wireTempC = temp;
+
+    const json = demo !== undefined ? DEMO_COILS[demo] : await readProfileJson(positionals[0], io.cwd);
+    const report = analyzeCoil(parseCoilProfile(json), drive);
+    io.out(values.json ? `${JSON.stringify(report, null, 2)}\n` : formatCoilReport(report));
+    return EXIT_OK;
+  },
+};

@@ -1,0 +1,255 @@
+/**
+ * Programme loudness by ITU-R BS.1770-4 with the EBU R 128 meters of EBU Tech 3341 (momentary,
+ * short-term, integrated) and the loudness range of EBU Tech 3342.
+ *
+ * One pass per channel: K-weighting (two float64 biquads) fused with a sum of squares per 100 ms
+ * sub-block, so the filtered signal is never stored. Every 400 ms gating block and 3 s short-term
+ * window is then a sum of 4 or 30 consecutive sub-block sums.
+ *
+ * Time grid and the tail. Sub-block k covers samples [round(k·fs/10), round((k+1)·fs/10)) (exact at
+ * every rate that is a multiple of 10 Hz). Window j of length W starts at j·0.1 s and ends at
+ * j·0.1 s + W; only complete windows exist. This is BS.1770-4's rule for gating blocks (j runs to
+ * (T − Tg)/(Tg·step), so a block never reaches past the end of the programme): samples after the last
+ * whole 100 ms sub-block lie in no complete block and do not count, and a clip shorter than 400 ms has
+ * no block at all. The momentary series is exactly the list of gating blocks.
+ */
+import { InputError } from '../errors.ts';
+import { kWeightingCoeffs, type KWeightingCoeffs } from './k-weighting.ts';
+import { INTEGRATED_RELATIVE_GATE_LU, gate, loudnessLufs } from './gating.ts';
+import { loudnessRangeLu } from './loudness-range.ts';
+
+/** Hop between successive momentary/short-term values and gating blocks, s (75 % overlap of 400 ms). */
+export const BLOCK_HOP_S = 0.1;
+/** Momentary window and gating block length, s. ITU-R BS.1770-4 Annex 1; EBU Tech 3341. */
+export const MOMENTARY_WINDOW_S = 0.4;
+/** Short-term window length, s. EBU Tech 3341. */
+export const SHORT_TERM_WINDOW_S = 3;
+/** Lowest sample rate accepted, Hz: below it the K-weighting shelf (1.68 kHz) nears Nyquist. */
+export const MIN_LOUDNESS_SAMPLE_RATE_HZ = 8000;
+
+const MOMENTARY_SUBBLOCKS = 4;
+const SHORT_TERM_SUBBLOCKS = 30;
+/** Filter state smaller than this is flushed to 0 at sub-block edges (avoids subnormal arithmetic). */
+const STATE_FLUSH = 1e-150;
+
+/** What {@link measureLoudness} reports. Levels in LUFS (≡ LKFS), ranges in LU; −Infinity = silence. */
+export interface LoudnessReport {
+  /** Gated integrated loudness over the whole clip, LUFS; −Infinity when no block exceeds −70 LUFS. */
+  integratedLufs: number;
+  /** Highest momentary (400 ms) loudness, LUFS; −Infinity when the clip is shorter than 400 ms. */
+  maxMomentaryLufs: number;
+  /** Highest short-term (3 s) loudness, LUFS; −Infinity when the clip is shorter than 3 s. */
+  maxShortTermLufs: number;
+  /** EBU Tech 3342 loudness range, LU; 0 when no short-term window passes the gates. */
+  loudnessRangeLu: number;
+  /** Ungated momentary loudness of the 400 ms window starting at j·0.1 s, LUFS. */
+  momentaryLufs: Float64Array;
+  /** Ungated short-term loudness of the 3 s window starting at j·0.1 s, LUFS. */
+  shortTermLufs: Float64Array;
+  /** Hop of both series, s. */
+  blockHopS: 0.1;
+}
+
+/**
+ * Default channel weights Gᵢ of ITU-R BS.1770-4 Annex 1 for a channel count, or null when the layout
+ * is ambiguous. Assumed orders: 1 mono; 2 L R; 3 L R C; 5 L R C Ls Rs; 6 L R C LFE Ls Rs (SMPTE /
+ * WAVE_FORMAT_EXTENSIBLE order, LFE excluded with weight 0). Surround weight 1.41 (+1.5 dB).
+ *
+ * @example defaultChannelWeights(6) // → [1, 1, 1, 0, 1.41, 1.41]
+ */
+export function defaultChannelWeights(channelCount: number): number[] | null {
+  switch (channelCount) {
+    case 1:
+      return [1];
+    case 2:
+      return [1, 1];
+    case 3:
+      return [1, 1, 1];
+    case 5:
+      return [1, 1, 1, 1.41, 1.41];
+    case 6:
+      return [1, 1, 1, 0, 1.41, 1.41];
+    default:
+      return null;
+  }
+}
+
+/**
+ * Start sample of each 100 ms sub-block: edges[k] = round(k·fs/10), for k = 0 … K where K is the
+ * number of whole sub-blocks in `length` samples (edges[K] ≤ length).
+ *
+ * @example subBlockEdges(44100, 10000) // → [0, 4410, 8820] (two whole sub-blocks, 1180 tail samples)
+ */
+export function subBlockEdges(sampleRateHz: number, length: number): Float64Array {
+  const perBlock = sampleRateHz / 10; // samples per 100 ms; exact for rates that are multiples of 10 Hz
+  let count = Math.floor(length / perBlock) + 1;
+  while (count > 0 && Math.round(count * perBlock) > length) count--;
+  const edges = new Float64Array(count + 1);
+  for (let k = 0; k <= count; k++) edges[k] = Math.round(k * perBlock);
+  return edges;
+}
+
+/**
+ * Fused K-weighting and energy accumulation: filters `samples` through both K stages (transposed
+ * direct form II, float64, from rest) and adds Σ y² over each sub-block [edges[k], edges[k+1]) into
+ * out[k]. Samples past the last edge are not read. Source of the filters: ITU-R BS.1770-4 Annex 1.
+ *
+ * @param samples one channel, full scale ±1
+ * @param coeffs from {@link kWeightingCoeffs} at the samples' rate
+ * @param edges sub-block edges from {@link subBlockEdges}
+ * @param out edges.length − 1 accumulators (added to, not overwritten)
+ * @returns `out`
+ * @example kWeightedSubBlockSums(x, kWeightingCoeffs(48000), subBlockEdges(48000, x.length), sums)
+ */
+export function kWeightedSubBlockSums(
+  samples: Float32Array,
+  coeffs: KWeightingCoeffs,
+  edges: Float64Array,
+  out: Float64Array,
+): Float64Array {
+  const { b0: p0, b1: p1, b2: p2, a1: pa1, a2: pa2 } = coeffs.shelf;
+  const { b0: h0, b1: h1, b2: h2, a1: ha1, a2: ha2 } = coeffs.highPass;
+  let s1 = 0;
+  let s2 = 0;
+  let t1 = 0;
+  let t2 = 0;
+  for (let k = 0; k + 1 < edges.length; k++) {
+    const end = edges[k + 1];
+    let acc = 0;
+    for (let i = edges[k]; i < end; i++) {
+      const x = samples[i];
+      const u = p0 * x + s1;
+      s1 = p1 * x - pa1 * u + s2;
+      s2 = p2 * x - pa2 * u;
+      const y = h0 * u + t1;
+      t1 = h1 * u - ha1 * y + t2;
+      t2 = h2 * u - ha2 * y;
+      acc += y * y;
+    }
+    out[k] += acc;
+    // After long digital silence the decaying state would become subnormal (slow on x86);
+    // 1e-150 is 3000 dB below full scale, so flushing it changes no reported digit.
+    if (Math.abs(s1) < STATE_FLUSH) s1 = 0;
+    if (Math.abs(s2) < STATE_FLUSH) s2 = 0;
+    if (Math.abs(t1) < STATE_FLUSH) t1 = 0;
+    if (Math.abs(t2) < STATE_FLUSH) t2 = 0;
+  }
+  return out;
+}
+
+/** Loudness of each complete window of `span` sub-blocks, starting at every sub-block. */
+function windowLoudness(weightedSums: Float64Array, edges: Float64Array, span: number): Float64Array {
+  const count = Math.max(0, weightedSums.length - span + 1);
+  const out = new Float64Array(count);
+  for (let j = 0; j < count; j++) {
+    let e = 0;
+    for (let k = j; k < j + span; k++) e += weightedSums[k];
+    out[j] = loudnessLufs(e / (edges[j + span] - edges[j]));
+  }
+  return out;
+}
+
+function maxOf(values: Float64Array): number {
+  let m = -Infinity;
+  for (let j = 0; j < values.length; j++) if (values[j] > m) m = values[j];
+  return m;
+}
+
+/**
+ * Measures integrated, momentary and short-term loudness and loudness range of a clip.
+ *
+ *   zᵢ = mean square of K-weighted channel i over a block;  L = −0.691 + 10·log10 Σ Gᵢ·zᵢ  (LUFS)
+ *   integrated: blocks 400 ms, hop 100 ms; keep L > −70 LUFS; Γr = L(mean energy of kept) − 10 LU;
+ *               result = L(mean energy of blocks with L > Γr)
+ *   momentary = ungated 400 ms windows, short-term = ungated 3 s windows, both every 100 ms.
+ *
+ * Sources: ITU-R BS.1770-4 Annex 1 (filter, formula, gating, weights); EBU Tech 3341 (momentary,
+ * short-term); EBU Tech 3342 (loudness range, see {@link loudnessRangeLu}). Windows, the time grid and
+ * the tail are described at the top of this file. Silence (no block above −70 LUFS) gives
+ * integratedLufs = −Infinity; JSON writers convert it with `finiteOrNull`.
+ *
+ * @param channels planar channels of equal length, full scale ±1
+ * @param sampleRate Hz, at least 8000
+ * @param opts.channelWeights Gᵢ per channel; default from {@link defaultChannelWeights} (1, 2, 3, 5 or
+ *   6 channels; other counts must pass weights)
+ * @throws InputError 'unsupported-channel-layout' for other channel counts without weights,
+ *   'unsupported-sample-rate' below 8 kHz; RangeError/TypeError for malformed arguments
+ * @example
+ *   // stereo 997 Hz sine at −23 dBFS peak per channel, 10 s at 48 kHz
+ *   measureLoudness([x, x], 48000).integratedLufs // → −23.00 LUFS
+ */
+export function measureLoudness(
+  channels: Float32Array[],
+  sampleRate: number,
+  opts: { channelWeights?: number[] } = {},
+): LoudnessReport {
+  if (!Array.isArray(channels) || channels.length === 0) {
+    throw new RangeError('measureLoudness: channels must be a non-empty array of Float32Array');
+  }
+  for (const [i, ch] of channels.entries()) {
+    if (!(ch instanceof Float32Array)) throw new TypeError(`measureLoudness: channels[${i}] is not a Float32Array`);
+    if (ch.length !== channels[0].length) {
+      throw new RangeError(
+        `measureLoudness: channels[${i}] has ${ch.length} samples, channels[0] has ${channels[0].length}`,
+      );
+    }
+  }
+  if (!(Number.isFinite(sampleRate) && sampleRate > 0)) {
+    throw new RangeError(`measureLoudness: sampleRate must be a positive finite number of Hz, got ${sampleRate}`);
+  }
+  if (sampleRate < MIN_LOUDNESS_SAMPLE_RATE_HZ) {
+    throw new InputError(
+      'unsupported-sample-rate',
+      `Loudness needs a sample rate of at least ${MIN_LOUDNESS_SAMPLE_RATE_HZ} Hz, the clip has ${sampleRate} Hz: resample it first.`,
+    );
+  }
+  let weights: number[];
+  if (opts.channelWeights !== undefined) {
+    weights = opts.channelWeights;
+    if (weights.length !== channels.length) {
+      throw new RangeError(
+        `measureLoudness: channelWeights has ${weights.length} values for ${channels.length} channels`,
+      );
+    }
+    for (const [i, g] of weights.entries()) {
+      if (!(Number.isFinite(g) && g >= 0)) {
+        throw new RangeError(`measureLoudness: channelWeights[${i}] must be finite and ≥ 0, got ${g}`);
+      }
+    }
+  } else {
+    const d = defaultChannelWeights(channels.length);
+    if (d === null) {
+      throw new InputError(
+        'unsupported-channel-layout',
+        `Cannot weight ${channels.length} channels for loudness: the layout is ambiguous. ` +
+          'Use a mono, stereo, 3.0, 5.0 or 5.1 file, or downmix it to stereo.',
+      );
+    }
+    weights = d;
+  }
+
+  const edges = subBlockEdges(sampleRate, channels[0].length);
+  const subBlocks = edges.length - 1;
+  const coeffs = kWeightingCoeffs(sampleRate);
+  const weighted = new Float64Array(subBlocks);
+  const scratch = new Float64Array(subBlocks);
+  for (const [i, ch] of channels.entries()) {
+    const g = weights[i];
+    if (g === 0) continue;
+    scratch.fill(0);
+    kWeightedSubBlockSums(ch, coeffs, edges, scratch);
+    for (let k = 0; k < subBlocks; k++) weighted[k] += g * scratch[k];
+  }
+
+  const momentaryLufs = windowLoudness(weighted, edges, MOMENTARY_SUBBLOCKS);
+  const shortTermLufs = windowLoudness(weighted, edges, SHORT_TERM_SUBBLOCKS);
+  return {
+    integratedLufs: gate(momentaryLufs, INTEGRATED_RELATIVE_GATE_LU).meanLufs,
+    maxMomentaryLufs: maxOf(momentaryLufs),
+    maxShortTermLufs: maxOf(shortTermLufs),
+    loudnessRangeLu: loudnessRangeLu(shortTermLufs),
+    momentaryLufs,
+    shortTermLufs,
+    blockHopS: 0.1,
+  };
+}

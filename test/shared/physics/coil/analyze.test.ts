@@ -1,0 +1,130 @@
+import { describe, expect, it } from 'vitest';
+import { DEMO_COILS } from '../../../../shared/demo/coils.ts';
+import { isInputError } from '../../../../shared/errors.ts';
+import { analyzeCoil } from '../../../../shared/physics/coil/analyze.ts';
+import type { CoilProfile } from '../../../../shared/schemas/coil.ts';
+import ref from '../../../fixtures/coil/reference.json' with { type: 'json' };
+
+const rel = (a: number, b: number): number => Math.abs(a / b - 1);
+const desk = DEMO_COILS['desk-lantern'];
+const withPrimaryAt = (offsetM: number): CoilProfile => ({ ...desk, primary: { ...desk.primary, offsetM } });
+
+describe('analyzeCoil on the desk-size demo coil', () => {
+  const r = analyzeCoil(desk);
+
+  it('matches an independent numpy/scipy/mpmath computation of L, C, f0, M and k', () => {
+    // test/fixtures/coil/generate.py: textbook Nagaoka and Maxwell forms with scipy's elliptic
+    // integrals, the torus series in mpmath, Medhurst interpolated by hand. Tolerance 1e-9: the
+    // textbook forms lose a few digits to cancellation.
+    const d = ref.deskLantern;
+    expect(rel(r.secondary.inductanceH, d.inductanceH)).toBeLessThan(1e-9);
+    expect(rel(r.primary.inductanceH, d.primaryInductanceH)).toBeLessThan(1e-9);
+    expect(rel(r.mutualInductanceH, d.mutualInductanceH)).toBeLessThan(1e-9);
+    expect(rel(r.couplingK, d.couplingK)).toBeLessThan(1e-9);
+    expect(rel(r.secondary.selfCapacitanceF, d.selfCapacitanceF)).toBeLessThan(1e-9);
+    expect(rel(r.topLoad.capacitanceF, d.topLoadCapacitanceF)).toBeLessThan(1e-9);
+    expect(rel(r.resonanceHz, d.resonanceHz)).toBeLessThan(1e-9);
+    expect(rel(r.secondary.wireLengthM, d.wireLengthM)).toBeLessThan(1e-12);
+    expect(rel(r.secondary.dcResistanceOhm, d.dcResistanceOhm)).toBeLessThan(1e-12);
+  });
+
+  it('keeps its invariants: f0 = 1/(2π√(L·C_total)), C_total = self + top + extra, Q = 2πf0L/R_ac', () => {
+    const w = 2 * Math.PI * r.resonanceComputedHz;
+    expect(Math.abs(w * w * r.secondary.inductanceH * r.totalCapacitanceF - 1)).toBeLessThan(1e-14);
+    expect(rel(r.totalCapacitanceF, r.secondary.selfCapacitanceF + r.topLoad.capacitanceF + r.extraCapacitanceF)).toBeLessThan(1e-15);
+    expect(rel(r.qualityFactorComputed, (w * r.secondary.inductanceH) / r.secondary.acResistanceOhm)).toBeLessThan(1e-14);
+    expect(rel(r.modulationCornerHz, r.resonanceHz / (2 * r.qualityFactor))).toBeLessThan(1e-15);
+    expect(rel(r.ringUpTauS, r.qualityFactor / (Math.PI * r.resonanceHz))).toBeLessThan(1e-15);
+  });
+
+  it('puts the alternatives beside the headline figures, in the expected order', () => {
+    const s = r.secondary;
+    // Wheeler reads low (−0.5 % near l/D = 4 [calc trend]); the turn sum sits Rosa's correction below.
+    expect(rel(s.inductanceLundinH, s.inductanceH)).toBeLessThan(3e-6);
+    expect(s.inductanceWheelerH).toBeLessThan(s.inductanceH);
+    expect(rel(s.inductanceWheelerH, s.inductanceH)).toBeLessThan(0.01);
+    expect(s.inductanceTurnSumH).toBeLessThan(s.inductanceH);
+    expect(rel(s.inductanceTurnSumH, s.inductanceH)).toBeLessThan(0.005);
+    // Models of self-capacitance: Medhurst > Radiotron > Knight here (l/D ≈ 4).
+    const m = s.selfCapacitanceModels;
+    expect(m.medhurstTableF).toBeGreaterThan(m.radiotronFitF);
+    expect(m.radiotronFitF).toBeGreaterThan(m.knightAirCoreF);
+    expect(r.resonanceByModelHz.knightAirCoreHz).toBeGreaterThan(r.resonanceByModelHz.medhurstTableHz);
+    // Skin effect only raises resistance; hot wire more than cold.
+    expect(s.acResistanceOhm).toBeGreaterThan(s.dcResistanceHotOhm);
+    expect(s.dcResistanceHotOhm).toBeGreaterThan(s.dcResistanceOhm);
+  });
+
+  it('serialises to JSON without loss (no NaN, Infinity or undefined)', () => {
+    expect(JSON.parse(JSON.stringify(r))).toEqual(r);
+    expect(r.cautions.length).toBeGreaterThanOrEqual(6);
+  });
+});
+
+describe('coupling with primary position', () => {
+  it('0 < k < 1, rising as the primary moves from the bottom toward the middle, symmetric about it', () => {
+    // A primary at the middle of a uniform secondary links the most turns' flux (Maxwell's formula
+    // summed); by symmetry top and bottom positions couple alike. Symmetry tolerance 1e-9.
+    const l = desk.secondary.windingLengthM;
+    const ks = [0, 0.05, 0.1, 0.15].map((z) => analyzeCoil(withPrimaryAt(z)).couplingK);
+    for (const k of ks) {
+      expect(k).toBeGreaterThan(0);
+      expect(k).toBeLessThan(1);
+    }
+    for (let i = 1; i < ks.length; i++) expect(ks[i]).toBeGreaterThan(ks[i - 1]);
+    expect(rel(analyzeCoil(withPrimaryAt(l)).couplingK, ks[0])).toBeLessThan(1e-9);
+    expect(rel(analyzeCoil(withPrimaryAt(0.1)).couplingK, analyzeCoil(withPrimaryAt(l - 0.1)).couplingK)).toBeLessThan(1e-9);
+  });
+
+  it('a primary far below the secondary couples weakly', () => {
+    expect(analyzeCoil(withPrimaryAt(-1.5)).couplingK).toBeLessThan(0.01);
+  });
+});
+
+describe('measured figures and drive context', () => {
+  it('measured resonance and Q take precedence; the discrepancy is shown in percent', () => {
+    const computed = analyzeCoil(desk);
+    const r = analyzeCoil({ ...desk, measured: { resonanceHz: 300e3, qualityFactor: 120 } });
+    expect(r.resonanceHz).toBe(300e3);
+    expect(r.resonanceComputedHz).toBeCloseTo(computed.resonanceComputedHz, 6);
+    expect(r.resonanceDiscrepancyPercent).toBeCloseTo((300e3 / computed.resonanceComputedHz - 1) * 100, 10);
+    expect(r.qualityFactor).toBe(120);
+    expect(r.qualityFactorMeasured).toBe(120);
+    expect(r.modulationCornerHz).toBeCloseTo(300e3 / 240, 9);
+    expect(computed.resonanceDiscrepancyPercent).toBeNull();
+  });
+
+  it('bounds top voltage by √(2·V·I·t_on/C) and sets keepOut = 2 × max(gap, arc reach)', () => {
+    const r = analyzeCoil(desk, { supplyVoltageV: 170, fullRailCurrentA: 30, pulseOnTimeS: 100e-6, inputPowerW: 500 });
+    const E = 170 * 30 * 100e-6;
+    expect(r.voltage.energyJ).toBeCloseTo(E, 15);
+    expect(rel(r.voltage.topVoltageBoundV!, Math.sqrt((2 * E) / r.totalCapacitanceF))).toBeLessThan(1e-15);
+    expect(rel(r.voltage.breakdownGapM!, r.voltage.topVoltageBoundV! / 3e6)).toBeLessThan(1e-15);
+    expect(rel(r.voltage.arcReachM!, 0.04318 * Math.sqrt(500))).toBeLessThan(1e-15);
+    expect(rel(r.keepOutM!, 2 * Math.max(r.voltage.breakdownGapM!, r.voltage.arcReachM!))).toBeLessThan(1e-15);
+    // Without input power, full rail power V·I stands in (an upper bound).
+    expect(analyzeCoil(desk, { supplyVoltageV: 170, fullRailCurrentA: 30 }).voltage.inputPowerW).toBe(5100);
+  });
+
+  it('without drive figures gives no bound and says so', () => {
+    const r = analyzeCoil(desk);
+    expect(r.keepOutM).toBeNull();
+    expect(r.voltage.topVoltageBoundV).toBeNull();
+    expect(r.notes.join(' ')).toMatch(/supply voltage/);
+  });
+
+  it('rejects bad drive figures with an InputError naming the field', () => {
+    try {
+      analyzeCoil(desk, { supplyVoltageV: -5 });
+      expect.unreachable();
+    } catch (e) {
+      expect(isInputError(e) && e.code === 'bad-drive' && e.field === 'supplyVoltageV').toBe(true);
+    }
+  });
+
+  it('a hotter wire lowers Q; a bigger top load lowers f0', () => {
+    expect(analyzeCoil(desk, { wireTempC: 80 }).qualityFactorComputed).toBeLessThan(analyzeCoil(desk, { wireTempC: 20 }).qualityFactorComputed);
+    const bigger: CoilProfile = { ...desk, topLoad: { shape: 'torus', outerDiameterM: 0.3, tubeDiameterM: 0.075 } };
+    expect(analyzeCoil(bigger).resonanceHz).toBeLessThan(analyzeCoil(desk).resonanceHz);
+  });
+});
