@@ -1,0 +1,182 @@
+/**
+ * Envelopes of a modulation signal: a one-pole peak follower with separate attack and release, and
+ * a per-frame RMS envelope computed from frame statistics (no pass over the samples).
+ *
+ * Time-constant convention (both attack and release): τ is the time to cover 1 − 1/e ≈ 63.2 % of a
+ * step, i.e. the follower is the sampled (impulse-invariant) one-pole RC response:
+ *   y[n] = y[n−1] + α·(|x[n]| − y[n−1]),  α = 1 − e^(−1/(τ·fs)),
+ * so after m samples of a step from 0 to 1, y = 1 − e^(−m/(τ·fs)) exactly, and after m samples of
+ * a drop from 1 to 0, y = e^(−m/(τ·fs)). (A 10→90 % rise time is τ·ln 9 ≈ 2.197·τ.) The attack
+ * coefficient applies while |x| > y, the release coefficient otherwise: the "branching" peak
+ * detector of Giannoulis, Massberg & Reiss, "Digital dynamic range compressor design — a tutorial
+ * and analysis", J. Audio Eng. Soc. 60(6), 2012, which uses the same 1 − 1/e convention
+ * [recalled]. The coefficient is the impulse-invariant discretisation of the RC step response
+ * v = 1 − e^(−t/RC) (Oppenheim & Schafer, Discrete-Time Signal Processing, §7.1 [recalled]).
+ *
+ * Both envelopes scale with gain: the follower of g·x is |g| times the follower of x (every
+ * comparison and update is homogeneous of degree 1), and so is the RMS envelope.
+ */
+import { type FrameStats, checkFrameLayout, frameCount, frameLength, frameStart } from './frame-stats.ts';
+
+/**
+ * One-pole smoothing coefficient α = 1 − e^(−1/(τ·fs)) (dimensionless), from a time constant τ in s
+ * and a rate fs in Hz; τ = 0 gives 1 (instant), τ = ∞ gives 0 (hold). Kernel: trusts its inputs.
+ * @example onePoleCoefficient(0.001, 48000) // 1 − e^(−1/48) ≈ 0.020621
+ */
+export const onePoleCoefficient = (tauS: number, sampleRate: number): number =>
+  tauS === 0 ? 1 : -Math.expm1(-1 / (tauS * sampleRate));
+
+export interface PeakFollowerOptions {
+  /** Attack time constant τa, s (63.2 % of a rising step; 0 = instant). */
+  attackS: number;
+  /** Release time constant τr, s (decay to 1/e after a fall; Infinity = hold the peak). */
+  releaseS: number;
+  /** Hz. */
+  sampleRate: number;
+}
+
+/** A running peak follower. `value` is the current envelope, linear full scale. */
+export interface PeakFollower {
+  /** Feeds one sample (linear full scale), returns the envelope after it. */
+  next(x: number): number;
+  /** Sets the envelope to `levelLinear` (default 0). */
+  reset(levelLinear?: number): void;
+  readonly value: number;
+}
+
+function checkFollower(fn: string, o: PeakFollowerOptions): void {
+  if (!(Number.isFinite(o.sampleRate) && o.sampleRate > 0)) {
+    throw new RangeError(`${fn}: sampleRate must be a positive number of Hz, got ${o.sampleRate}`);
+  }
+  if (!(o.attackS >= 0 && o.attackS < Infinity)) {
+    throw new RangeError(`${fn}: attackS must be a finite time ≥ 0 s, got ${o.attackS}`);
+  }
+  if (!(o.releaseS >= 0)) throw new RangeError(`${fn}: releaseS must be ≥ 0 s (Infinity holds), got ${o.releaseS}`);
+}
+
+/**
+ * Creates a one-pole peak follower of |x| (convention in the module comment).
+ * @example
+ *   const f = createPeakFollower({ attackS: 0.001, releaseS: 0.05, sampleRate: 48000 });
+ *   for (let m = 0; m < 48; m++) f.next(1);  // f.value = 1 − e^(−1) ≈ 0.632 after 1 ms
+ */
+export function createPeakFollower(opts: PeakFollowerOptions): PeakFollower {
+  checkFollower('createPeakFollower', opts);
+  const aA = onePoleCoefficient(opts.attackS, opts.sampleRate);
+  const aR = onePoleCoefficient(opts.releaseS, opts.sampleRate);
+  let y = 0;
+  return {
+    next(x: number): number {
+      const a = Math.abs(x);
+      y += (a > y ? aA : aR) * (a - y);
+      return y;
+    },
+    reset(levelLinear = 0): void {
+      y = levelLinear;
+    },
+    get value() {
+      return y;
+    },
+  };
+}
+
+/**
+ * Runs the peak follower over `signal` and returns, for each frame (layout of frame-stats.ts), the
+ * follower's maximum within that frame, linear full scale. The follower starts at `initialLevel`.
+ *
+ * @param opts.frameS  frame length, s (default 0.001)
+ * @param opts.out  optional buffer of at least frameCount(n, fs·frameS) values
+ * @example peakEnvelopeFrames(x, 44100, { attackS: 0.0005, releaseS: 0.02 }) // one value per 1 ms
+ */
+export function peakEnvelopeFrames(
+  signal: Float32Array,
+  sampleRate: number,
+  opts: { attackS: number; releaseS: number; frameS?: number; initialLevel?: number; out?: Float64Array },
+): Float64Array {
+  const fn = 'peakEnvelopeFrames';
+  checkFollower(fn, { ...opts, sampleRate });
+  const frameS = opts.frameS ?? 0.001;
+  const spf = checkFrameLayout(fn, sampleRate, frameS);
+  const n = signal.length;
+  const count = frameCount(n, spf);
+  if (opts.out && opts.out.length < count) throw new RangeError(`${fn}: out must hold ${count} values`);
+  const out = opts.out ? opts.out.subarray(0, count) : new Float64Array(count);
+  const aA = onePoleCoefficient(opts.attackS, sampleRate);
+  const aR = onePoleCoefficient(opts.releaseS, sampleRate);
+  let y = opts.initialLevel ?? 0;
+  let start = 0;
+  for (let k = 0; k < count; k++) {
+    const end = k + 1 === count ? n : frameStart(k + 1, spf);
+    let m = 0;
+    for (let i = start; i < end; i++) {
+      const a = Math.abs(signal[i]);
+      y += (a > y ? aA : aR) * (a - y);
+      if (y > m) m = y;
+    }
+    out[k] = m;
+    start = end;
+  }
+  return out;
+}
+
+/**
+ * RMS envelope per frame from frame statistics: for frame k, √(Σ n_j·meanSquare_j / Σ n_j) over the
+ * W = max(1, round(windowS/frameS)) frames of its window (n_j = samples in frame j), i.e. the exact
+ * RMS of the samples in those frames. The effective window is W whole frames (10 ms default =
+ * 10 frames of 1 ms). 'centred' windows span frames k − ⌊W/2⌋ … k − ⌊W/2⌋ + W − 1 (zero lag, the
+ * clip is known in advance); 'trailing' spans k − W + 1 … k (causal, like a meter). Windows are cut
+ * at the clip's ends. A full-scale sine reads 1/√2 (plain RMS, see level.ts).
+ *
+ * Sums are recomputed from scratch every W frames and slid in between, so rounding left behind by a
+ * loud passage cannot swamp a quiet one for longer than one window.
+ *
+ * @param opts.windowS  window length, s (default 0.01)
+ * @param opts.out  optional buffer of at least stats.count values
+ * @example rmsEnvelope(computeFrameStats(sine, 44100)) // ≈ A/√2 in every full window
+ */
+export function rmsEnvelope(
+  stats: FrameStats,
+  opts: { windowS?: number; align?: 'centred' | 'trailing'; out?: Float64Array } = {},
+): Float64Array {
+  const fn = 'rmsEnvelope';
+  const windowS = opts.windowS ?? 0.01;
+  if (!(Number.isFinite(windowS) && windowS > 0)) {
+    throw new RangeError(`${fn}: windowS must be a positive number of seconds, got ${windowS}`);
+  }
+  const count = stats.count;
+  if (opts.out && opts.out.length < count) throw new RangeError(`${fn}: out must hold ${count} values`);
+  const out = opts.out ? opts.out.subarray(0, count) : new Float64Array(count);
+  const w = Math.max(1, Math.round(windowS / stats.frameS));
+  const lead = opts.align === 'trailing' ? w - 1 : Math.floor(w / 2);
+  const len = new Float64Array(count);
+  for (let k = 0; k < count; k++) len[k] = frameLength(stats, k);
+  const ms = stats.meanSquare;
+  // Window of output k: frames [k − lead, k − lead + w) cut to [0, count).
+  let energy = 0;
+  let samples = 0;
+  for (let k = 0; k < count; k++) {
+    const lo = Math.max(0, k - lead);
+    const hi = Math.min(count, k - lead + w);
+    if (k % w === 0) {
+      energy = 0;
+      samples = 0;
+      for (let j = lo; j < hi; j++) {
+        energy += len[j] * ms[j];
+        samples += len[j];
+      }
+    } else {
+      const inJ = k - lead + w - 1; // frame entering at the top
+      const outJ = k - lead - 1; // frame leaving at the bottom
+      if (inJ < count) {
+        energy += len[inJ] * ms[inJ];
+        samples += len[inJ];
+      }
+      if (outJ >= 0) {
+        energy -= len[outJ] * ms[outJ];
+        samples -= len[outJ];
+      }
+    }
+    out[k] = samples > 0 && energy > 0 ? Math.sqrt(energy / samples) : 0;
+  }
+  return out;
+}

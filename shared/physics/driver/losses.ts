@@ -1,0 +1,185 @@
+/**
+ * Loss models of every switching device, per switch, averaged over an interval (a frame of the
+ * rail, or a pulse). Each returns {@link LossParts}: the part that scales with the on-resistance's
+ * temperature factor and the parts that do not, so the electrothermal loop (./electrothermal.ts)
+ * can solve for the junction temperature.
+ *
+ * Sources: the conduction and hard-switching formulas are those of the MOSFET loss application
+ * note of Graovac, Pürschel & Kiep (Infineon, "MOSFET Power Losses Calculation Using the
+ * Data-Sheet Parameters", 2006 [recalled]) and of Mohan, Undeland & Robbins, *Power Electronics*,
+ * 3rd ed., §2-5, eq. 2-6 [recalled] (linearised switching waveforms of a clamped inductive load:
+ * ½·V·I·t_c per transition); the linear pass-device dissipation is (V_in − V_out)·I; the buck's
+ * duty relations from Erickson & Maksimović, *Fundamentals of Power Electronics*, 2nd ed., ch. 2.
+ */
+import type { DriverDevice, DriverTopology } from '../../schemas/driver.ts';
+import { bridgeCurrentFactors } from './currents.ts';
+
+/** A device's average loss over an interval, split by temperature dependence (all W, per switch). */
+export interface LossParts {
+  /** I²·R part evaluated with R at 25 °C; multiply by 1 + α(Tj − 25). */
+  resistiveAt25W: number;
+  /** Conduction part independent of temperature (IGBT V_CE(sat)·I_avg; linear pass dissipation). */
+  conductionFixedW: number;
+  /** Hard-switching (V–I overlap) part. */
+  switchingW: number;
+  /** Output-capacitance part ½·C_oss·V²·f. */
+  capacitiveW: number;
+}
+
+/**
+ * Total loss in W at junction temperature tjC (°C): resistiveAt25W·(1 + α(Tj − 25)) + the rest, with
+ * α the linear temperature coefficient of R_ds(on) in 1/K (Graovac et al. 2006 [recalled]).
+ *
+ * @example totalLossW({ resistiveAt25W: 2, conductionFixedW: 0, switchingW: 1, capacitiveW: 0 }, 0.007, 125) // → 4.4 W
+ */
+export function totalLossW(p: LossParts, tempCoeffPerK: number, tjC: number): number {
+  return p.resistiveAt25W * (1 + tempCoeffPerK * (tjC - 25)) + p.conductionFixedW + p.switchingW + p.capacitiveW;
+}
+
+/**
+ * Moments of the rail over an interval, for a load drawing I = g·V: E[I] (A), E[I²] (A²),
+ * E[V·I] (W) and E[V²] (V²). For a constant rail V and current I: {I, I², V·I, V²}.
+ */
+export interface RailMoments {
+  meanCurrentA: number;
+  meanSquareCurrentA2: number;
+  meanPowerW: number;
+  meanSquareV2: number;
+}
+
+/**
+ * Moments of a rail whose per-interval mean E[v] (V) and mean square E[v²] (V²) are known, with
+ * the resistive-equivalent current I = g·v: E[I] = gE[v], E[I²] = g²E[v²], E[VI] = gE[v²].
+ *
+ * @example railMoments(0.0625, 24, 576) // constant 24 V → { meanCurrentA: 1.5, …, meanPowerW: 36 }
+ */
+export function railMoments(gAPerV: number, meanV: number, meanSquareV2: number, out?: RailMoments): RailMoments {
+  const o = out ?? { meanCurrentA: 0, meanSquareCurrentA2: 0, meanPowerW: 0, meanSquareV2: 0 };
+  o.meanCurrentA = gAPerV * meanV;
+  o.meanSquareCurrentA2 = gAPerV * gAPerV * meanSquareV2;
+  o.meanPowerW = gAPerV * meanSquareV2;
+  o.meanSquareV2 = meanSquareV2;
+  return o;
+}
+
+/** A zeroed {@link LossParts}, e.g. as an `out` buffer. */
+export const emptyLossParts = (): LossParts => ({ resistiveAt25W: 0, conductionFixedW: 0, switchingW: 0, capacitiveW: 0 });
+
+/**
+ * Loss of ONE bridge switch driving a series-resonant primary at its resonance f0 (Hz), averaged
+ * over an interval whose rail moments are `m` (current = supply/rail current of the bridge).
+ * With the topology's per-switch ratios kᵣₘₛ, k_avg, k_pk (./currents.ts):
+ * - MOSFET conduction: kᵣₘₛ²·E[I²]·R_ds(on)(Tj) (Graovac et al. 2006 [recalled]);
+ * - IGBT conduction: V_CE(sat)·k_avg·E[I] + r·kᵣₘₛ²·E[I²] (r = optional `rdsOnOhm` slope resistance);
+ * - switching, hard-switched estimate: ½·V·I_c·(t_r + t_f)·f0 per transition pair and cycle with the
+ *   commutated current I_c = k_pk·I (the switch's peak current): ½·k_pk·E[V·I]·(t_r + t_f)·f0
+ *   (Mohan et al. eq. 2-6 [recalled], clamped inductive switching). At resonance the bridge switches near zero
+ *   current (ZCS), which removes most of this term; switching at the current peak is the upper
+ *   bound for any phase error, kept here as the conservative estimate;
+ * - output capacitance: ½·C_oss·E[V²]·f0 (energy of C_oss discharged at each hard turn-on; zero
+ *   with zero-voltage switching, kept as conservative).
+ *
+ * @example bridgeLossParts(dev, 'half-bridge', 300e3, railMoments(0.0625, 48, 2304))
+ */
+export function bridgeLossParts(
+  device: DriverDevice,
+  topology: DriverTopology,
+  resonanceHz: number,
+  m: RailMoments,
+  out?: LossParts,
+): LossParts {
+  const k = bridgeCurrentFactors(topology);
+  const r = device.rdsOnOhm ?? 0;
+  const vce = device.kind === 'igbt' ? (device.vceSatV ?? 0) : 0;
+  const o = out ?? emptyLossParts();
+  o.resistiveAt25W = r * k.switchRms * k.switchRms * m.meanSquareCurrentA2;
+  o.conductionFixedW = vce * k.switchAvg * m.meanCurrentA;
+  o.switchingW = 0.5 * k.switchPeak * m.meanPowerW * (device.riseTimeS + device.fallTimeS) * resonanceHz;
+  o.capacitiveW = 0.5 * device.outputCapacitanceF * m.meanSquareV2 * resonanceHz;
+  return o;
+}
+
+/**
+ * Dissipation of a linear pass device (series regulator) between the supply V_s and the rail v,
+ * averaged over an interval: P = E[(V_s − v)·I] with I = g·v, i.e. P = g·(V_s·E[v] − E[v²]) in W.
+ * For a constant rail it is g·v·(V_s − v), largest at v = V_s/2: g·V_s²/4 — silence, which puts the
+ * rail at half the supply, is the hottest case for the pass device. The saturation floor I²·R_on
+ * near v = V_s is neglected. Returned as conductionFixedW (it does not depend on Tj).
+ *
+ * @example passLossParts(48, 0.0625, 24, 576).conductionFixedW // → 36 W = g·V_s²/4
+ */
+export function passLossParts(supplyV: number, gAPerV: number, meanV: number, meanSquareV2: number, out?: LossParts): LossParts {
+  const o = out ?? emptyLossParts();
+  o.resistiveAt25W = 0;
+  o.conductionFixedW = Math.max(0, gAPerV * (supplyV * meanV - meanSquareV2));
+  o.switchingW = 0;
+  o.capacitiveW = 0;
+  return o;
+}
+
+/**
+ * Sharp upper bound of E[v³] (V³) for a rail v ∈ [0, V_max] with mean m and mean square s: the
+ * extremal distribution has its mass on {y, V_max} with y = (V_max·m − s)/(V_max − m), and
+ * E[v³] ≤ (V_max + 2y)·s − (2y·V_max + y²)·m + y²·V_max, because the quadratic on the right of
+ * v³ ≤ v³ − (v − y)²(v − V_max) dominates v³ on [0, V_max] (Chebyshev–Markov–Krein moment
+ * bounds: Karlin & Studden, *Tchebycheff Systems*, 1966, ch. III). Exact for a constant rail; about
+ * 10 % above the true value for a fully modulated sine. Inputs are clamped to the feasible set
+ * m ∈ [0, V_max], s ∈ [m², V_max·m].
+ *
+ * @example railThirdMomentBoundV3(10, 100, 20) // constant 10 V → 1000
+ */
+export function railThirdMomentBoundV3(meanV: number, meanSquareV2: number, maxV: number): number {
+  const m = Math.min(Math.max(meanV, 0), maxV);
+  const s = Math.min(Math.max(meanSquareV2, m * m), maxV * m);
+  if (m >= maxV) return maxV * maxV * maxV;
+  if (m <= 0) return 0;
+  const y = Math.max(0, (maxV * m - s) / (maxV - m));
+  return (maxV + 2 * y) * s - (2 * y * maxV + y * y) * m + y * y * maxV;
+}
+
+/**
+ * Loss of the rail modulator: the switch of a buck converter at pwmHz from the supply V_s to the
+ * rail v, duty D = v/V_s, carrying the rail current I = g·v during its on-time (continuous
+ * conduction, inductor ripple neglected; Erickson & Maksimović ch. 2). Averaged over an interval
+ * with rail mean E[v] and mean square E[v²]:
+ * - MOSFET conduction D·I²·R(Tj): g²·R·E[v³]/V_s, with E[v³] bounded above by
+ *   {@link railThirdMomentBoundV3} (the frame gives only two moments; the bound is exact for a
+ *   constant rail and conservative otherwise);
+ * - IGBT conduction D·I·V_CE(sat) + D·I²·r: V_CE·g·E[v²]/V_s + r·g²·E[v³]/V_s;
+ * - switching ½·V_s·I·(t_r + t_f)·f_pwm → ½·V_s·g·E[v]·(t_r + t_f)·f_pwm (hard-switched, clamped
+ *   inductive: Mohan et al. eq. 2-6 [recalled]; Graovac et al. 2006 [recalled]);
+ * - output capacitance ½·C_oss·V_s²·f_pwm while the modulator switches (E[v] > 0).
+ * The freewheel diode's conduction and recovery losses are in another device and neglected here.
+ *
+ * @example modulatorLossParts(dev, 160, 100e3, 0.025, 80, 6400)
+ */
+export function modulatorLossParts(
+  device: DriverDevice,
+  supplyV: number,
+  pwmHz: number,
+  gAPerV: number,
+  meanV: number,
+  meanSquareV2: number,
+  out?: LossParts,
+): LossParts {
+  const ev3 = railThirdMomentBoundV3(meanV, meanSquareV2, supplyV);
+  const r = device.rdsOnOhm ?? 0;
+  const vce = device.kind === 'igbt' ? (device.vceSatV ?? 0) : 0;
+  const o = out ?? emptyLossParts();
+  o.resistiveAt25W = (r * gAPerV * gAPerV * ev3) / supplyV;
+  o.conductionFixedW = (vce * gAPerV * Math.max(meanSquareV2, 0)) / supplyV;
+  o.switchingW = 0.5 * supplyV * gAPerV * Math.max(meanV, 0) * (device.riseTimeS + device.fallTimeS) * pwmHz;
+  o.capacitiveW = meanV > 0 ? 0.5 * device.outputCapacitanceF * supplyV * supplyV * pwmHz : 0;
+  return o;
+}
+
+/**
+ * Current drawn from the supply by the buck modulator in A, by power balance: the rail power g·E[v²]
+ * plus the modulator's own loss, divided by V_s (input capacitor assumed: the PWM-frequency pulses
+ * of the switch current are averaged).
+ *
+ * @example buckSupplyCurrentA(160, 0.025, 6400, 2) // → (160 + 2)/160 = 1.0125 A
+ */
+export function buckSupplyCurrentA(supplyV: number, gAPerV: number, meanSquareV2: number, modulatorLossW: number): number {
+  return (gAPerV * meanSquareV2 + modulatorLossW) / supplyV;
+}
