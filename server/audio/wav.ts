@@ -196,3 +196,6 @@ function writeError(e: unknown, path: string): unknown {
   if (code && why[code]) return new InputError('unwritable', `cannot write ${path}: ${why[code]}; choose another output path`);
   return e;
 }
+
+/** The same atomic write for any file the command line produces (CSV traces, reports). */
+export const writeFileAtomic = writeWavAtomic;

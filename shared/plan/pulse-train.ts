@@ -102,8 +102,10 @@ export function zeroCrossingEvents(
  * hop is voiced (f0 finite), phase-continuous across hops; unvoiced hops make no pulses. The level
  * of an event is the frame peak |x| (from per-frame min/max) at its time.
  *
- * @param f0Hz  pitch per hop (NaN = unvoiced), hops of `hopS` starting at t = 0
+ * @param f0Hz  pitch per hop (NaN = unvoiced); hop j covers [firstS + j·hopS, firstS + (j+1)·hopS)
  * @param framePeak  per-frame peak |x| on a grid of `frameS`, linear full scale
+ * @param firstS  start of the first hop, s (a pitch track centred on its frames starts half a hop
+ *   before its first centre)
  */
 export function pitchLockedEvents(
   f0Hz: Float32Array,
@@ -111,6 +113,7 @@ export function pitchLockedEvents(
   framePeak: Float32Array,
   frameS: number,
   durationS: number,
+  firstS = 0,
 ): PulseEvents {
   if (!(hopS > 0 && frameS > 0)) throw new RangeError(`pitchLockedEvents: hopS and frameS must be > 0 s, got ${hopS}, ${frameS}`);
   const times: number[] = [];
@@ -120,7 +123,7 @@ export function pitchLockedEvents(
   let remainingCycles = 0;
   for (let j = 0; j < f0Hz.length; j++) {
     const f = f0Hz[j];
-    const t0 = j * hopS;
+    const t0 = Math.max(0, firstS + j * hopS);
     if (!Number.isFinite(f) || f <= 0) {
       remainingCycles = 0;
       continue;

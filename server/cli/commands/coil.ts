@@ -1,5 +1,3 @@
-import { readFile } from 'node:fs/promises';
-import { resolve } from 'node:path';
 import { InputError } from '../../../shared/errors.ts';
 import { DEMO_COIL_NAMES, DEMO_COILS } from '../../../shared/demo/coils.ts';
 import { analyzeCoil, type CoilDriveContext, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
@@ -7,6 +5,7 @@ import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
 import { msToS } from '../../../shared/units.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
+import { readJsonFile } from '../read-json.ts';
 
 const USAGE =
   'coilcue coil <coil.json> | --demo <name> [--json] [--supply-v <V>] [--rail-current-a <A>] [--on-time-ms <ms>] [--input-power-w <W>] [--wire-temp-c <°C>]';
@@ -95,24 +94,6 @@ export function formatCoilReport(r: CoilReport): string {
   return lines.join('\n');
 }
 
-async function readProfileJson(path: string, cwd: string): Promise<unknown> {
-  const full = resolve(cwd, path);
-  let text: string;
-  try {
-    text = await readFile(full, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' ? 'permission denied' : (code ?? 'unreadable');
-    throw new InputError('file-not-found', `cannot read coil profile "${path}" (${why}); check the path.`);
-  }
-  try {
-    return JSON.parse(text);
-  } catch (e) {
-    const msg = e instanceof Error ? e.message : String(e);
-    throw new InputError('bad-json', `coil profile "${path}" is not valid JSON (${msg}); fix the file or start from a demo: coilcue coil --demo ${DEMO_COIL_NAMES[0]} --json.`);
-  }
-}
-
 /** `coilcue coil`: analyses a coil profile and prints a table (or JSON with --json). */
 export const coilCommand: Command = {
   summary: 'model a coil: inductance, capacitance, resonance, Q, coupling, voltage bound',
@@ -148,7 +129,7 @@ export const coilCommand: Command = {
     if (power !== undefined) drive.inputPowerW = power;
     if (temp !== undefined) drive.wireTempC = temp;
 
-    const json = demo !== undefined ? DEMO_COILS[demo] : await readProfileJson(positionals[0], io.cwd);
+    const json = demo !== undefined ? DEMO_COILS[demo] : await readJsonFile(positionals[0], io.cwd, 'coil profile', `fix the file or start from a demo: coilcue coil --demo ${DEMO_COIL_NAMES[0]} --json`);
     const report = analyzeCoil(parseCoilProfile(json), drive);
     io.out(values.json ? `${JSON.stringify(report, null, 2)}\n` : formatCoilReport(report));
     return EXIT_OK;

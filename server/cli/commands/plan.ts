@@ -1,0 +1,180 @@
+import { dirname, resolve } from 'node:path';
+import { modulationSource, type ModulationChannel } from '../../../shared/audio/clip.ts';
+import { InputError } from '../../../shared/errors.ts';
+import { analyzeCoil, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
+import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
+import { type PulseSource, toPlanClip } from '../../../shared/plan/plan-clip.ts';
+import { type PlanReport, planClipReport } from '../../../shared/plan/report.ts';
+import { type SetResult, planSet } from '../../../shared/plan/set.ts';
+import { traceCsv } from '../../../shared/plan/trace.ts';
+import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
+import { type DriverProfile, parseDriverProfile } from '../../../shared/schemas/driver.ts';
+import { parseSetFile } from '../../../shared/schemas/set.ts';
+import { writeFileAtomic } from '../../audio/wav.ts';
+import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
+import type { CliIo, Command } from '../io.ts';
+import { readJsonFile } from '../read-json.ts';
+import { loadAndAnalyze } from './analyze.ts';
+import { formatEng } from './coil.ts';
+
+const USAGE =
+  'coilcue plan --clip <audio> --coil <coil.json> --driver <driver.json> [--gain-db G] [--json] [--trace out.csv] ' +
+  '[--channel mix|left|right] [--margin-k K] [--allowed-share S] [--ambient-c C] [--pulse-source zero-crossing|pitch-locked]\n' +
+  '       coilcue plan --set <set.json> [--json] [--common-gain] [--ambient-c C] [--margin-k K] [--allowed-share S]';
+
+export async function loadCoil(path: string, cwd: string): Promise<CoilReport> {
+  return analyzeCoil(parseCoilProfile(await readJsonFile(path, cwd, 'coil profile', 'fix the file or start from a demo: coilcue coil --demo desk-lantern --json')));
+}
+
+export async function loadDriver(path: string, cwd: string): Promise<DriverProfile> {
+  return parseDriverProfile(await readJsonFile(path, cwd, 'driver profile', 'fix the file; the README shows a complete driver profile'));
+}
+
+/** Analyses a clip file and turns it into the planner's input. */
+async function loadPlanClip(file: string, io: CliIo, driver: DriverProfile, channel: ModulationChannel, pulseSource: PulseSource) {
+  const { clip, analysis } = await loadAndAnalyze(file, io, { channel });
+  return { planClip: toPlanClip(file, analysis, modulationSource(clip, channel), driver, pulseSource), analysis };
+}
+
+const f1 = (x: number) => x.toFixed(1);
+const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
+
+function limitText(l: { limit: string; role: string | null; value: number; allowed: number; unit: string }): string {
+  const who = l.role ? ` (${l.role})` : '';
+  const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
+  return `${l.limit}${who}: ${v}`;
+}
+
+/** The readable answer for one clip. */
+export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
+  const out: string[] = [];
+  out.push(`clip ${r.clip} (${r.durationS.toFixed(1)} s) on coil ${coil.name} (${formatEng(coil.resonanceHz, 'Hz')}, Q ${coil.qualityFactor.toFixed(0)}, envelope corner ${formatEng(r.modulationCornerHz, 'Hz')}) with driver ${driver.name} (${r.scheme})`);
+  out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${pct(r.settings.allowedShare)}, ambient ${r.settings.ambientC} °C`);
+  for (const w of r.warnings) out.push(`WARNING: ${w}`);
+  if (r.advisedGainDb === null) {
+    out.push(`advised gain: none is safe${r.binding ? `; failing: ${limitText(r.binding)}` : ''}`);
+  } else {
+    out.push(`advised gain: ${r.advisedGainDb.toFixed(1)} dB`);
+    if (r.binding) out.push(`binding limit: ${limitText(r.binding)}${r.binding.atS !== null ? ` at ${r.binding.atS.toFixed(2)} s` : ''} (just above the advised gain)`);
+    else out.push('binding limit: none up to the top of the search range');
+  }
+  out.push(`evaluated at ${Number.isFinite(r.evaluatedGainDb) ? r.evaluatedGainDb.toFixed(1) : '-inf'} dB:`);
+  for (const d of r.devices) {
+    out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
+  }
+  out.push(`  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (1 ms mean; limit ${r.supply.limitA} A), mean ${r.supply.meanCurrentA.toFixed(2)} A`);
+  out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
+  if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}`);
+  out.push('headroom of every limit at that gain:');
+  for (const l of r.limits) out.push(`  ${l.ok ? 'ok  ' : 'FAIL'} ${limitText(l)}`);
+  for (const b of r.budget) {
+    out.push(
+      `duty budget (${b.role}, ${b.fullLossW.toFixed(1)} W in full operation, ${f1(b.allowedRiseK)} K allowed rise): ` +
+        (b.crossing ? `the clip's demand exceeds the budget for bursts of ${formatEng(b.crossing.lengthS, 's')} (demand ${pct(b.crossing.demand)}, budget ${pct(b.crossing.budget)})` : 'the clip stays within budget at every burst length'),
+    );
+  }
+  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level where the rail reaches its ends)`);
+  if (r.preEmphasis) {
+    const p = r.preEmphasis;
+    out.push(
+      p.advised
+        ? `pre-emphasis advised: ${pct(p.energyAboveCornerFraction)} of the energy lies above the ${formatEng(p.cornerHz, 'Hz')} envelope corner (${p.envelopeLossDb.toFixed(1)} dB lost); a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')}`
+        : `pre-emphasis not needed: the envelope corner costs ${p.envelopeLossDb.toFixed(1)} dB`,
+    );
+  }
+  out.push(r.gainConvention);
+  return out.join('\n') + '\n';
+}
+
+export function formatSet(s: SetResult): string {
+  const out = [`set of ${s.items.length} clips, ${s.gainMode === 'common' ? `common gain ${s.commonGainDb?.toFixed(1)} dB` : 'gain advised per clip given its starting temperature'}, ambient ${s.ambientC} °C`];
+  s.items.forEach((it, i) => {
+    out.push(
+      `${String(i + 1).padStart(2)}. ${it.clip}: gain ${Number.isFinite(it.gainDb) ? it.gainDb.toFixed(1) : '-inf'} dB (advised ${it.advisedGainDb === null ? 'none safe' : it.advisedGainDb.toFixed(1)}), ` +
+        `starts ${it.startJunctionC.map((d) => `${d.role} ${f1(d.junctionC)} °C`).join(', ')}, peak ${f1(it.peakJunctionC)} °C, ${it.ok ? 'all limits hold' : `FAILS ${it.failing.map((l) => l.limit + (l.role ? ` (${l.role})` : '')).join(', ')}`}; ` +
+        `gap ${it.gapAfterS} s (shortest to recover within 5 K: ${it.minGapAfterS === null ? 'never while idling' : `${it.minGapAfterS.toFixed(1)} s`})`,
+    );
+  });
+  out.push(s.firstFailingItem === null ? 'every clip keeps every limit' : `first failing clip: ${s.firstFailingItem + 1}`);
+  return out.join('\n') + '\n';
+}
+
+function settingsFrom(values: Record<string, string | boolean | undefined>, driver: DriverProfile): PlanSettings {
+  return planSettings(driver, {
+    marginK: numberFlag(values['margin-k'] as string | undefined, 'margin-k', { min: 0, max: 200 }),
+    allowedShare: numberFlag(values['allowed-share'] as string | undefined, 'allowed-share', { min: 0, max: 0.5 }),
+    ambientC: numberFlag(values['ambient-c'] as string | undefined, 'ambient-c', { min: -40, max: 100 }),
+  });
+}
+
+export const planCommand: Command = {
+  summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
+  usage: USAGE,
+  async run(argv, io) {
+    const { values, positionals } = parseCommandArgs(
+      argv,
+      {
+        clip: { type: 'string' },
+        coil: { type: 'string' },
+        driver: { type: 'string' },
+        set: { type: 'string' },
+        'gain-db': { type: 'string' },
+        json: { type: 'boolean' },
+        trace: { type: 'string' },
+        channel: { type: 'string' },
+        'margin-k': { type: 'string' },
+        'allowed-share': { type: 'string' },
+        'ambient-c': { type: 'string' },
+        'pulse-source': { type: 'string' },
+        'common-gain': { type: 'boolean' },
+      },
+      USAGE,
+    );
+    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}". Usage: ${USAGE}`);
+    const channel = choiceFlag(values.channel, 'channel', ['mix', 'left', 'right'] as const) ?? 'mix';
+    const pulseSource = choiceFlag(values['pulse-source'], 'pulse-source', ['zero-crossing', 'pitch-locked'] as const) ?? 'zero-crossing';
+
+    if (values.set !== undefined) {
+      if (values.clip || values.coil || values.driver || values['gain-db'] || values.trace) {
+        throw new InputError('bad-arguments', `--set takes its coil, driver, clips and gains from the set file; drop --clip/--coil/--driver/--gain-db/--trace. Usage: ${USAGE}`);
+      }
+      const setPath = resolve(io.cwd, values.set);
+      const set = parseSetFile(await readJsonFile(values.set, io.cwd, 'set file', 'see the README for the set file format'));
+      const base = dirname(setPath);
+      const coil = await loadCoil(set.coil, base);
+      const driver = await loadDriver(set.driver, base);
+      const settings = settingsFrom(values, driver);
+      const items = [];
+      for (const it of set.items) {
+        const { planClip } = await loadPlanClip(resolve(base, it.clip), io, driver, channel, pulseSource);
+        planClip.name = it.clip;
+        items.push({ clip: planClip, gapAfterS: it.gapAfterS, gainDb: it.gainDb });
+      }
+      const result = planSet(items, coil, driver, settings, values['common-gain'] ? { commonGainDb: 'min-advised' } : {});
+      io.out(values.json ? JSON.stringify(result, jsonReplacer, 2) + '\n' : formatSet(result));
+      return 0;
+    }
+
+    if (!values.clip || !values.coil || !values.driver) {
+      throw new InputError('bad-arguments', `give --clip, --coil and --driver (or --set). Usage: ${USAGE}`);
+    }
+    const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
+    const coil = await loadCoil(values.coil, io.cwd);
+    const driver = await loadDriver(values.driver, io.cwd);
+    const settings = settingsFrom(values, driver);
+    const { planClip, analysis } = await loadPlanClip(values.clip, io, driver, channel, pulseSource);
+    const { report, evaluation } = planClipReport(planClip, coil, driver, settings, {
+      gainDb,
+      spectrum: analysis.spectrum.welch,
+      traces: values.trace !== undefined,
+    });
+    if (values.trace !== undefined) {
+      await writeFileAtomic(resolve(io.cwd, values.trace), new TextEncoder().encode(traceCsv(evaluation.sim, planClip.frames.frameS)));
+    }
+    io.out(values.json ? JSON.stringify(report, jsonReplacer, 2) + '\n' : formatPlan(report, coil, driver));
+    return 0;
+  },
+};
+
+/** JSON has no ±Infinity or NaN: write them as null. */
+export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v);

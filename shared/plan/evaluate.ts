@@ -1,0 +1,196 @@
+/**
+ * Evaluates one clip on one coil and driver at one gain: frame statistics × gain → rail per frame
+ * (or pulse train) → losses → junction temperature of every device → the check of every limit.
+ *
+ * Gain convention (docs/models.md): gain g = 10^(gainDb/20). At 0 dB a full-scale sample (±1.0)
+ * swings a rail scheme's rail over its whole range, v = (V_s/2)(1 + g·x), from 0 to the supply
+ * around a bias at half the supply; in the pulse scheme it takes the on-time to its maximum
+ * (on = maxOnTimeS·g·level, shared/plan/pulse-train.ts).
+ *
+ * The limits, each with its allowed value:
+ * - junction-temperature, per device: peak Tj ≤ Tj max − margin (default margin 25 K), and no
+ *   thermal runaway;
+ * - over-modulation: share of time the rail would have to leave 0…V_s (samples with g·|x| > 1,
+ *   from the magnitude histogram) ≤ allowed share (default 0.1 %);
+ * - supply-current: highest frame-mean supply current (1 ms frames; pulse current in the pulse
+ *   scheme) ≤ the supply's current limit;
+ * - on-time (pulse scheme): share of pulses whose demanded on-time exceeds the maximum ≤ allowed share;
+ * - duty (pulse scheme): share of pulses shortened by the duty limit ≤ allowed share.
+ */
+import type { FrameStats } from '../dsp/frame-stats.ts';
+import { type MagnitudeHistogram, fractionAbove } from '../dsp/histogram.ts';
+import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
+import { simulateRail } from '../physics/driver/simulate-rail.ts';
+import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
+import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
+import { dbToAmp } from '../units.ts';
+import { type PulseEvents, type PulseTrain, pulsesAtGain } from './pulse-train.ts';
+
+export type LimitName = 'junction-temperature' | 'over-modulation' | 'supply-current' | 'on-time' | 'duty';
+
+/** What the planner needs of a clip: the analysis's reductions of the modulation source. */
+export interface PlanClip {
+  name: string;
+  durationS: number;
+  frames: FrameStats;
+  histogram: MagnitudeHistogram;
+  /** Pulse candidates (pulse scheme only). */
+  pulseEvents?: PulseEvents;
+}
+
+export interface PlanSettings {
+  /** Kelvin kept below each device's Tj max (default 25). */
+  marginK: number;
+  /** Allowed share (0…1) of over-modulated time, clamped pulses (default 0.001). */
+  allowedShare: number;
+  /** Ambient, °C (default: the driver profile's). */
+  ambientC: number;
+}
+
+export const DEFAULT_MARGIN_K = 25;
+export const DEFAULT_ALLOWED_SHARE = 0.001;
+
+export function planSettings(driver: DriverProfile, s: Partial<PlanSettings> = {}): PlanSettings {
+  const out = { marginK: s.marginK ?? DEFAULT_MARGIN_K, allowedShare: s.allowedShare ?? DEFAULT_ALLOWED_SHARE, ambientC: s.ambientC ?? driver.ambientC };
+  if (!(out.marginK >= 0)) throw new RangeError(`planSettings: marginK must be ≥ 0 K, got ${out.marginK}`);
+  if (!(out.allowedShare >= 0 && out.allowedShare < 1)) throw new RangeError(`planSettings: allowedShare must be in 0…1, got ${out.allowedShare}`);
+  if (!Number.isFinite(out.ambientC)) throw new RangeError(`planSettings: ambientC must be finite, got ${out.ambientC}`);
+  return out;
+}
+
+/** The check of one limit at one gain. `headroom` = allowed − value, in the limit's unit (≥ 0 holds). */
+export interface LimitCheck {
+  limit: LimitName;
+  /** The device role, for junction-temperature. */
+  role: DeviceRole | null;
+  value: number;
+  allowed: number;
+  unit: 'C' | 'share' | 'A';
+  headroom: number;
+  ok: boolean;
+  /** When the limit is closest to (or past) its edge, s; null when it never comes near. */
+  atS: number | null;
+}
+
+export interface Evaluation {
+  gainDb: number;
+  sim: DriverSimulation;
+  overModulationFraction: number;
+  overModulationTimeS: number;
+  pulses: (Omit<PulseTrain, 'startS' | 'onS'> & { onTimeShare: number; dutyShare: number }) | null;
+  limits: LimitCheck[];
+  ok: boolean;
+  /** The first failing limit (most over its edge, relative), or null when all hold. */
+  worst: LimitCheck | null;
+}
+
+/** Reusable buffers for a gain search over one clip. */
+export interface EvalScratch {
+  meanV: Float64Array;
+  meanSquareV2: Float64Array;
+  train?: PulseTrain;
+}
+
+export function createScratch(clip: PlanClip): EvalScratch {
+  return { meanV: new Float64Array(clip.frames.count), meanSquareV2: new Float64Array(clip.frames.count) };
+}
+
+/**
+ * Rail per frame at gain g: E[v] = (V/2)(1 + g·mean), E[v²] = (V²/4)(1 + 2g·mean + g²·meanSquare)
+ * (linearity of expectation), clamped to the feasible set of a rail confined to 0…V:
+ * E[v] ∈ [0, V], E[v²] ∈ [E[v]², V·E[v]] (since 0 ≤ v ≤ V implies v² ≤ V·v, and Jensen). In frames
+ * that over-modulate the clamp is an approximation of the clipped rail (its error is bounded by
+ * the over-modulation limit's small allowed share); elsewhere it is exact.
+ */
+export function railAtGain(frames: FrameStats, gain: number, supplyV: number, out: EvalScratch): { meanV: Float64Array; meanSquareV2: Float64Array; firstOverModS: number | null } {
+  const h = supplyV / 2;
+  const n = frames.count;
+  let first: number | null = null;
+  for (let k = 0; k < n; k++) {
+    const m = frames.mean[k];
+    let ev = h * (1 + gain * m);
+    let ev2 = h * h * (1 + 2 * gain * m + gain * gain * frames.meanSquare[k]);
+    if (first === null && (gain * frames.max[k] > 1 || gain * frames.min[k] < -1)) first = k * frames.frameS;
+    ev = ev < 0 ? 0 : ev > supplyV ? supplyV : ev;
+    const lo = ev * ev;
+    const hi = supplyV * ev;
+    ev2 = ev2 < lo ? lo : ev2 > hi ? hi : ev2;
+    out.meanV[k] = ev;
+    out.meanSquareV2[k] = ev2;
+  }
+  return { meanV: out.meanV.subarray(0, n), meanSquareV2: out.meanSquareV2.subarray(0, n), firstOverModS: first };
+}
+
+function check(limit: LimitName, role: DeviceRole | null, value: number, allowed: number, unit: LimitCheck['unit'], atS: number | null): LimitCheck {
+  return { limit, role, value, allowed, unit, headroom: allowed - value, ok: value <= allowed, atS };
+}
+
+/**
+ * Evaluates `clip` at `gainDb` (module comment). `initial` carries a thermal state in from an
+ * earlier clip; `traces` asks for per-frame traces.
+ */
+export function evaluateAtGain(
+  clip: PlanClip,
+  coil: CoilAtResonance,
+  driver: DriverProfile,
+  gainDb: number,
+  settings: PlanSettings,
+  opts: { initial?: ThermalState[]; traces?: boolean; scratch?: EvalScratch } = {},
+): Evaluation {
+  const g = dbToAmp(gainDb);
+  const scratch = opts.scratch ?? createScratch(clip);
+  const simOpts = { initial: opts.initial, ambientC: settings.ambientC, traces: opts.traces, frameS: clip.frames.frameS };
+  const overModulationFraction = g > 0 ? fractionAbove(clip.histogram, 1 / g) : 0;
+  let sim: DriverSimulation;
+  let pulses: Evaluation['pulses'] = null;
+  let overModAtS: number | null = null;
+  if (driver.scheme === 'pulse') {
+    if (!clip.pulseEvents) throw new RangeError('evaluateAtGain: the pulse scheme needs clip.pulseEvents');
+    if (!driver.pulse) throw new RangeError('evaluateAtGain: the pulse scheme needs driver.pulse limits');
+    const train = pulsesAtGain(clip.pulseEvents, g, driver.pulse, scratch.train);
+    scratch.train = train;
+    sim = simulatePulses(driver, coil, { startS: train.startS.subarray(0, train.count), onS: train.onS.subarray(0, train.count) }, clip.durationS, simOpts);
+    const { startS: _s, onS: _o, ...counts } = train;
+    const denom = Math.max(1, train.events);
+    pulses = { ...counts, onTimeShare: train.onTimeClamped / denom, dutyShare: train.dutyClamped / denom };
+  } else {
+    const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, scratch);
+    overModAtS = rail.firstOverModS;
+    sim = simulateRail(driver, coil, { frameS: clip.frames.frameS, meanV: rail.meanV, meanSquareV2: rail.meanSquareV2 }, simOpts);
+  }
+
+  const limits: LimitCheck[] = [];
+  driver.devices.forEach((device) => {
+    const d = sim.devices.find((s) => s.role === device.role);
+    if (!d) return; // a device the scheme does not use (the simulation warns about it)
+    const allowed = device.tjMaxC - settings.marginK;
+    const c = check('junction-temperature', device.role, d.peakJunctionC, allowed, 'C', d.peakAtS);
+    if (d.runaway) {
+      c.ok = false;
+      c.value = Math.max(c.value, device.tjMaxC);
+      c.headroom = allowed - c.value;
+      c.atS = d.runaway.atS;
+    }
+    limits.push(c);
+  });
+  limits.push(check('over-modulation', null, overModulationFraction, settings.allowedShare, 'share', overModAtS));
+  limits.push(check('supply-current', null, sim.supply.peakCurrentA, driver.supplyCurrentLimitA, 'A', null));
+  if (pulses) {
+    limits.push(check('on-time', null, pulses.onTimeShare, settings.allowedShare, 'share', null));
+    limits.push(check('duty', null, pulses.dutyShare, settings.allowedShare, 'share', null));
+  }
+  const failing = limits.filter((l) => !l.ok);
+  // Most over its edge relative to the allowed value (shares against their allowance, °C and A against theirs).
+  const rel = (l: LimitCheck) => (l.value - l.allowed) / Math.max(Math.abs(l.allowed), 1e-9);
+  const worst = failing.length ? failing.reduce((a, b) => (rel(b) > rel(a) ? b : a)) : null;
+  return {
+    gainDb,
+    sim,
+    overModulationFraction,
+    overModulationTimeS: overModulationFraction * clip.durationS,
+    pulses,
+    limits,
+    ok: failing.length === 0,
+    worst,
+  };
+}
