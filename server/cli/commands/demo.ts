@@ -1,0 +1,66 @@
+import { mkdir, writeFile } from 'node:fs/promises';
+import { join, relative, resolve } from 'node:path';
+import { DEMO_CLIPS, synthDemoClip } from '../../../shared/demo/clips.ts';
+import { DEMO_COILS } from '../../../shared/demo/coils.ts';
+import { DEMO_DRIVERS } from '../../../shared/demo/drivers.ts';
+import { InputError } from '../../../shared/errors.ts';
+import { encodeWav } from '../../audio/wav.ts';
+import { parseCommandArgs } from '../args.ts';
+import type { Command } from '../io.ts';
+import { analyzeCommand } from './analyze.ts';
+import { coilCommand } from './coil.ts';
+import { planCommand } from './plan.ts';
+
+const USAGE = 'coilcue demo [--out <folder>]  (default folder: coilcue-demo)';
+const DEMO_COIL = 'desk-lantern';
+const DRIVER_FILES = ['driver-linear.json', 'driver-buck.json', 'driver-pulse.json'];
+
+/**
+ * Writes our invented demo scenario (synthesised clips, a coil, three drivers, a set) into a folder
+ * and runs the analysis, the coil model and the planner on it, section by section.
+ */
+export const demoCommand: Command = {
+  summary: 'write the built-in demo scenario to a folder and run every step on it',
+  usage: USAGE,
+  async run(argv, io) {
+    const { values, positionals } = parseCommandArgs(argv, { out: { type: 'string' } }, USAGE);
+    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}". Usage: ${USAGE}`);
+    const dir = resolve(io.cwd, values.out ?? 'coilcue-demo');
+    try {
+      await mkdir(dir, { recursive: true });
+    } catch {
+      throw new InputError('unwritable', `cannot create the folder ${dir}; choose another with --out`);
+    }
+    const shown = relative(io.cwd, dir) || '.';
+    for (const c of DEMO_CLIPS) {
+      await writeFile(join(dir, `${c.name}.wav`), encodeWav(synthDemoClip(c.name), { format: 's16', seed: 1 }));
+    }
+    await writeFile(join(dir, 'coil.json'), JSON.stringify(DEMO_COILS[DEMO_COIL], null, 2) + '\n');
+    await Promise.all(DEMO_DRIVERS.map((d, i) => writeFile(join(dir, DRIVER_FILES[i]), JSON.stringify(d, null, 2) + '\n')));
+    const set = {
+      coil: 'coil.json',
+      driver: DRIVER_FILES[0],
+      items: DEMO_CLIPS.map((c, i) => ({ clip: `${c.name}.wav`, gapAfterS: i === DEMO_CLIPS.length - 1 ? 0 : 20, gainDb: null })),
+    };
+    await writeFile(join(dir, 'set.json'), JSON.stringify(set, null, 2) + '\n');
+
+    const section = (title: string) => io.out(`\n== ${title}\n`);
+    io.out(`demo scenario written to ${shown}/: ${DEMO_CLIPS.map((c) => `${c.name}.wav`).join(', ')}, coil.json, ${DRIVER_FILES.join(', ')}, set.json\n`);
+    const clip = join(dir, `${DEMO_CLIPS[0].name}.wav`);
+    section(`analysis of ${DEMO_CLIPS[0].name}.wav`);
+    await analyzeCommand.run([clip], io);
+    section('coil model');
+    await coilCommand.run([join(dir, 'coil.json')], io);
+    for (const f of DRIVER_FILES) {
+      section(`plan for ${DEMO_CLIPS[0].name}.wav with ${f}`);
+      await planCommand.run(['--clip', clip, '--coil', join(dir, 'coil.json'), '--driver', join(dir, f)], io);
+    }
+    section(`set plan (${shown}/set.json)`);
+    await planCommand.run(['--set', join(dir, 'set.json')], io);
+    io.out(
+      '\nCaution: a resonant coil makes high voltage and RF that can burn, injure or kill, and ozone, fire risk and radio ' +
+        'interference; keep the keep-out distance, follow local codes and licensed practice, and protect your hearing.\n',
+    );
+    return 0;
+  },
+};
