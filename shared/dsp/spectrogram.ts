@@ -1,0 +1,194 @@
+/**
+ * A spectrogram sized for display: about a thousand time columns and a hundred-odd log-spaced
+ * frequency rows, whatever the clip length, with a bounded number of FFTs.
+ *
+ * Each column covers an equal share of the clip. Inside it, ⌈share/(size/2)⌉ Hann frames of `size`
+ * samples (50 % overlap), but at most `maxFramesPerColumn`, are spread evenly and their one-sided
+ * power spectral densities averaged (the density scaling of welch.ts: FS²/Hz, Σ psd·binHz = mean
+ * square). A five-minute clip at 44.1 kHz thus costs 1000 × 8 FFTs of 2048 points, frames 1654
+ * samples apart (every sample covered); from about eight minutes on, the frames leave gaps between
+ * them. Short clips get one frame per column and fewer columns (no finer than a quarter frame apart).
+ *
+ * Rows: `rows` bands with log-spaced edges eᵣ = minHz·(maxHz/minHz)^(r/rows). A row's value is the
+ * mean of the PSD over [eᵣ, eᵣ₊₁] with the PSD taken as piecewise linear between bin centres, i.e.
+ * (1/(eᵣ₊₁ − eᵣ))·∫ psd(f) df. Wide rows thus average their bins (trapezoid weights); rows narrower
+ * than a bin interpolate between the two nearest bins instead of repeating one. Because the row means
+ * are means of a density, Σᵣ 10^(db/10)·(eᵣ₊₁ − eᵣ) ≈ the power between minHz and maxHz.
+ */
+import { RealFft, isPowerOfTwo } from './fft.ts';
+import { hannWindow } from './window.ts';
+
+/** Options of {@link displaySpectrogram}; every field has a default. */
+export interface SpectrogramOptions {
+  /** Requested time columns (default 1000); fewer for clips shorter than columns × size/4 samples. */
+  columns?: number;
+  /** Log-spaced frequency rows (default 128). */
+  rows?: number;
+  /** Lower edge of the lowest row, Hz (default 20). */
+  minHz?: number;
+  /** Upper edge of the highest row, Hz (default min(20000, fs/2)). */
+  maxHz?: number;
+  /** FFT size, a power of two ≥ 4 (default 2048: 21.5 Hz bins, 46 ms at 44.1 kHz). */
+  size?: number;
+  /** Most FFT frames averaged per column (default 8); bounds the cost of long clips. */
+  maxFramesPerColumn?: number;
+  /** Level written for a row with no power, dB re 1 FS²/Hz (default −200). */
+  floorDb?: number;
+}
+
+/** A display spectrogram. `db[c·rows + r]` is column c (time), row r (frequency, lowest first). */
+export interface DisplaySpectrogram {
+  /** Centre time of each column, s. */
+  timesS: Float64Array;
+  /** Geometric centre √(eᵣ·eᵣ₊₁) of each row, Hz. */
+  frequenciesHz: Float64Array;
+  /** Row edges, rows + 1 values, Hz. */
+  edgesHz: Float64Array;
+  /**
+   * Mean PSD of each row in dB re 1 FS²/Hz (10·log10 of FS²/Hz, floored at floorDb), laid out
+   * column after column: each time column is a contiguous run of `rows` values, lowest row first.
+   */
+  db: Float32Array;
+  columns: number;
+  rows: number;
+  /** FFT frames averaged in each column. */
+  framesPerColumn: number;
+  /** FFT size used. */
+  size: number;
+}
+
+/**
+ * Means of a one-sided PSD (bins k·binHz, piecewise linear between them, constant beyond the last
+ * bin) over consecutive bands with the given edges: out[r] = ∫_{e_r}^{e_{r+1}} psd / (e_{r+1} − e_r).
+ * The integral of a piecewise-linear function is exact (trapezoid rule on its own knots). Bins
+ * and edges are in the same units, so the mean is a density in the PSD's own unit.
+ *
+ * @param psd density per bin, any unit U/Hz
+ * @param binHz bin spacing, Hz
+ * @param edgesHz ascending band edges, Hz (≥ 0), bands = edgesHz.length − 1
+ * @param out bands values (allocated when absent)
+ * @returns mean density per band, in U/Hz
+ * @example bandMeans(Float64Array.of(0, 1, 2, 3), 10, Float64Array.of(5, 25)) // → [1.5]
+ */
+export function bandMeans(
+  psd: ArrayLike<number>,
+  binHz: number,
+  edgesHz: ArrayLike<number>,
+  out: Float64Array = new Float64Array(edgesHz.length - 1),
+): Float64Array {
+  const last = psd.length - 1;
+  // ∫ of the piece k (between bins k and k+1) from k to k+t, in U·bins; beyond the last bin the
+  // density is constant. Rows are integrated piece by piece (no global running sum), so a quiet row
+  // next to a loud one keeps its own relative precision.
+  const partial = (k: number, t: number): number =>
+    k >= last ? t * psd[last] : t * psd[k] + 0.5 * t * t * (psd[k + 1] - psd[k]);
+  for (let r = 0; r < edgesHz.length - 1; r++) {
+    const x0 = edgesHz[r] / binHz;
+    const x1 = edgesHz[r + 1] / binHz;
+    const k0 = Math.floor(x0);
+    const k1 = Math.floor(x1);
+    let integral: number;
+    if (k0 === k1) {
+      integral = partial(k0, x1 - k0) - partial(k0, x0 - k0);
+    } else {
+      integral = partial(k0, 1) - partial(k0, x0 - k0);
+      for (let k = k0 + 1; k < k1; k++) integral += partial(k, 1);
+      integral += partial(k1, x1 - k1);
+    }
+    out[r] = integral / (x1 - x0);
+  }
+  return out;
+}
+
+function positiveInt(v: number, name: string): number {
+  if (!Number.isInteger(v) || v < 1) throw new RangeError(`displaySpectrogram: ${name} must be an integer ≥ 1, got ${v}`);
+  return v;
+}
+
+/**
+ * Display spectrogram of a mono signal: Hann-windowed FFT frames averaged per time column, one-sided
+ * PSD (FS²/Hz, welch.ts scaling) averaged into log-spaced rows, in dB (module comment for the method).
+ *
+ * Frames reach past the clip ends at the first and last columns; the missing samples count as zeros.
+ *
+ * @param signal samples, full scale ±1 (not empty)
+ * @param sampleRate Hz
+ * @param opts see {@link SpectrogramOptions}
+ * @returns see {@link DisplaySpectrogram}
+ * @throws RangeError for empty input or invalid options (the message names the option)
+ * @example
+ *   const s = displaySpectrogram(clip, 44100); // 5 min → 1000 columns × 128 rows, 8 frames each
+ *   s.db[c * s.rows + r]; // level of row r in column c, dB re 1 FS²/Hz
+ */
+export function displaySpectrogram(
+  signal: Float32Array,
+  sampleRate: number,
+  opts: SpectrogramOptions = {},
+): DisplaySpectrogram {
+  if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
+    throw new RangeError(`displaySpectrogram: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+  }
+  const n = signal.length;
+  if (n === 0) throw new RangeError('displaySpectrogram: signal is empty');
+  const size = opts.size ?? 2048;
+  if (!isPowerOfTwo(size) || size < 4) {
+    throw new RangeError(`displaySpectrogram: opts.size must be a power of two ≥ 4, got ${size}`);
+  }
+  const rows = positiveInt(opts.rows ?? 128, 'opts.rows');
+  const requested = positiveInt(opts.columns ?? 1000, 'opts.columns');
+  const maxFrames = positiveInt(opts.maxFramesPerColumn ?? 8, 'opts.maxFramesPerColumn');
+  const minHz = opts.minHz ?? 20;
+  const maxHz = opts.maxHz ?? Math.min(20000, sampleRate / 2);
+  if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 2)) {
+    throw new RangeError(
+      `displaySpectrogram: need 0 < minHz < maxHz ≤ fs/2 = ${sampleRate / 2} Hz, got minHz ${minHz}, maxHz ${maxHz}`,
+    );
+  }
+  const floorDb = opts.floorDb ?? -200;
+  const floorPower = Math.pow(10, floorDb / 10);
+
+  const columns = Math.min(requested, Math.max(1, Math.ceil(n / (size / 4))));
+  const span = n / columns;
+  const framesPerColumn = Math.min(maxFrames, Math.max(1, Math.ceil(span / (size / 2))));
+
+  const edgesHz = new Float64Array(rows + 1);
+  const frequenciesHz = new Float64Array(rows);
+  const ratio = maxHz / minHz;
+  for (let r = 0; r <= rows; r++) edgesHz[r] = minHz * Math.pow(ratio, r / rows);
+  edgesHz[rows] = maxHz;
+  for (let r = 0; r < rows; r++) frequenciesHz[r] = Math.sqrt(edgesHz[r] * edgesHz[r + 1]);
+
+  const fft = new RealFft(size);
+  const bins = fft.bins;
+  const w = hannWindow(size);
+  let sumW2 = 0;
+  for (let i = 0; i < size; i++) sumW2 += w[i] * w[i];
+  const frame = new Float64Array(size);
+  const power = new Float64Array(bins);
+  const acc = new Float64Array(bins);
+  const means = new Float64Array(rows);
+  const binHz = sampleRate / size;
+  const scale = 1 / (framesPerColumn * sampleRate * sumW2);
+
+  const timesS = new Float64Array(columns);
+  const db = new Float32Array(columns * rows);
+  for (let c = 0; c < columns; c++) {
+    timesS[c] = ((c + 0.5) * span) / sampleRate;
+    acc.fill(0);
+    for (let f = 0; f < framesPerColumn; f++) {
+      const centre = (c + (f + 0.5) / framesPerColumn) * span;
+      const start = Math.round(centre - size / 2);
+      const i0 = Math.max(0, -start);
+      const i1 = Math.min(size, n - start);
+      frame.fill(0);
+      for (let i = i0; i < i1; i++) frame[i] = signal[start + i] * w[i];
+      fft.powerSpectrum(frame, power);
+      for (let k = 0; k < bins; k++) acc[k] += power[k];
+    }
+    for (let k = 0; k < bins; k++) acc[k] *= (k === 0 || k === bins - 1 ? 1 : 2) * scale;
+    bandMeans(acc, binHz, edgesHz, means);
+    const base = c * rows;
+    for (let r = 0; r < rows; r++) db[base + r] = 10 * Math.log10(Math.max(means[r], floorPower));
+  }
+  return { timesS, frequenciesHz, edgesHz, db, columns, rows, framesPerColumn, size };
+}

@@ -1,0 +1,107 @@
+/**
+ * Average power spectral density by Welch's method: P. D. Welch, "The use of fast Fourier transform
+ * for the estimation of power spectra: a method based on time averaging over short, modified
+ * periodograms", IEEE Trans. Audio Electroacoust. AU-15(2), 1967, pp. 70–73.
+ *
+ * coilcue's spectrum convention (the same in welch.ts, spectrogram.ts and spectral-features.ts):
+ * periodic Hann window, one-sided **power spectral density** in FS²/Hz (FS = digital full scale, so a
+ * ±1 sine has mean square ½), scaled so that the density integrates to the mean square:
+ *
+ *   psd[k] = cₖ · mean over segments of |Σₙ w[n]·x[n]·e^(−j2πkn/N)|² / (fs · Σₙ w[n]²),
+ *   cₖ = 1 for k = 0 and k = N/2, 2 otherwise (the negative frequencies folded in),
+ *
+ *   Σₖ psd[k] · binHz ≈ mean(x²)      (Parseval in density form; binHz = fs/N).
+ *
+ * A sine of amplitude A on a bin centre therefore shows a peak of (A²/2)/(binHz·ENBW) with
+ * ENBW = 1.5 bins for Hann (Harris, Proc. IEEE 66(1), 1978), and its power A²/2 is the sum of the
+ * bins under the peak times binHz. No detrending (unlike scipy.signal.welch's default): a DC offset
+ * is part of what a modulated coil sees and shows in bin 0.
+ */
+import { RealFft, isPowerOfTwo } from './fft.ts';
+import { hannWindow } from './window.ts';
+
+/** A one-sided power spectral density (units FS²/Hz) on a uniform frequency grid. */
+export interface PowerSpectrum {
+  /** Bin centre frequencies k·binHz, k = 0…size/2, in Hz. */
+  frequencyHz: Float64Array;
+  /** One-sided power spectral density per bin, in FS²/Hz (see the module comment for the scaling). */
+  psd: Float64Array;
+  /** Bin spacing fs/size, in Hz. */
+  binHz: number;
+}
+
+/** Welch's estimate: the spectrum plus how it was made. */
+export interface WelchSpectrum extends PowerSpectrum {
+  /** Number of segments averaged (1 when the signal is shorter than one segment). */
+  segments: number;
+  /** FFT size in samples (the segment length, unless the signal was shorter: then it was zero-padded). */
+  size: number;
+}
+
+/**
+ * One-sided PSD by Welch's method: periodic Hann segments of `size` samples with 50 % overlap
+ * (hop size/2), periodograms averaged, density scaling as in the module comment (Welch 1967).
+ *
+ * Segments start at 0, size/2, size, …; trailing samples that do not fill a whole segment are not
+ * used (at most size/2 − 1 of them, as scipy.signal.welch does). A signal shorter than `size` (but
+ * not empty) is analysed as one segment: a Hann window of the signal's own length, zero-padded to
+ * `size`; the density scaling uses that window, so Parseval still holds, but the frequency resolution
+ * is that of the short signal (the extra bins interpolate). Signals of 1–3 samples use a rectangular
+ * window (a Hann window that short is mostly zeros).
+ *
+ * @param signal samples, full scale ±1
+ * @param sampleRate in Hz (> 0)
+ * @param opts.size FFT size, a power of two ≥ 4 (default 4096: 10.8 Hz bins at 44.1 kHz)
+ * @returns frequencyHz, psd (FS²/Hz), binHz, segments, size
+ * @throws RangeError for an empty signal, a bad sample rate or size
+ * @example
+ *   // 1 s of a 1 kHz sine, amplitude 0.5, at 48 kHz: Σ psd·binHz ≈ 0.125; peak near 1000 Hz
+ *   const s = welchPsd(sine, 48000); // s.binHz = 11.72, s.segments = 22
+ */
+export function welchPsd(
+  signal: Float32Array,
+  sampleRate: number,
+  opts: { size?: number } = {},
+): WelchSpectrum {
+  const size = opts.size ?? 4096;
+  if (!isPowerOfTwo(size) || size < 4) {
+    throw new RangeError(`welchPsd: opts.size must be a power of two ≥ 4, got ${size}`);
+  }
+  if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
+    throw new RangeError(`welchPsd: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+  }
+  const n = signal.length;
+  if (n === 0) throw new RangeError('welchPsd: signal is empty');
+
+  const fft = new RealFft(size);
+  const bins = fft.bins;
+  const acc = new Float64Array(bins);
+  const power = new Float64Array(bins);
+  const seg = new Float64Array(size);
+
+  const segLen = Math.min(n, size);
+  const w = segLen >= 4 ? hannWindow(segLen) : new Float64Array(segLen).fill(1);
+  let sumW2 = 0;
+  for (let i = 0; i < segLen; i++) sumW2 += w[i] * w[i];
+
+  const hop = size / 2;
+  const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
+  for (let s = 0; s < segments; s++) {
+    const start = s * hop;
+    for (let i = 0; i < segLen; i++) seg[i] = signal[start + i] * w[i];
+    // seg[segLen…] stays 0: zero padding for a short signal
+    fft.powerSpectrum(seg, power);
+    for (let k = 0; k < bins; k++) acc[k] += power[k];
+  }
+
+  const binHz = sampleRate / size;
+  const psd = new Float64Array(bins);
+  const frequencyHz = new Float64Array(bins);
+  const scale = 1 / (segments * sampleRate * sumW2);
+  for (let k = 0; k < bins; k++) {
+    const fold = k === 0 || k === bins - 1 ? 1 : 2;
+    psd[k] = fold * acc[k] * scale;
+    frequencyHz[k] = k * binHz;
+  }
+  return { frequencyHz, psd, binHz, segments, size };
+}

@@ -1,0 +1,145 @@
+import { createRequire } from 'node:module';
+import { describe, expect, it } from 'vitest';
+import { RealFft, isPowerOfTwo, nextPowerOfTwo } from '../../../shared/dsp/fft.ts';
+
+// fft-js (devDependency) is the independent oracle: a separate, recursive radix-2 Cooley–Tukey
+// implementation. It ships no types, so it is loaded through require with the one signature we use.
+const require = createRequire(import.meta.url);
+const oracle = require('fft-js') as { fft(x: number[]): [number, number][] };
+
+/** Deterministic uniform noise in [−1, 1) (a 32-bit LCG, Numerical Recipes constants). */
+function noise(n: number, seed: number): number[] {
+  let s = seed >>> 0;
+  const out: number[] = [];
+  for (let i = 0; i < n; i++) {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    out.push(s / 2 ** 31 - 1);
+  }
+  return out;
+}
+
+describe('RealFft construction', () => {
+  it('accepts powers of two ≥ 4 and rejects the rest', () => {
+    expect(() => new RealFft(2)).toThrow(RangeError);
+    expect(() => new RealFft(12)).toThrow(/power of two/);
+    expect(() => new RealFft(4.5)).toThrow(RangeError);
+    expect(new RealFft(4).bins).toBe(3);
+    expect(new RealFft(4096).bins).toBe(2049);
+  });
+
+  it('helpers', () => {
+    expect(isPowerOfTwo(1024)).toBe(true);
+    expect(isPowerOfTwo(1000)).toBe(false);
+    expect(nextPowerOfTwo(441)).toBe(512);
+    expect(nextPowerOfTwo(512)).toBe(512);
+  });
+
+  it('rejects input longer than the size', () => {
+    expect(() => new RealFft(4).forward([1, 2, 3, 4, 5])).toThrow(/more than size 4/);
+  });
+});
+
+describe('RealFft.forward against the fft-js oracle', () => {
+  // Both are float64 O(N log N) algorithms: rounding grows like ε·log2 N ≈ 1e-15, so 1e-9 of the
+  // largest bin leaves a wide margin while any indexing or sign error would be O(1).
+  for (const n of [4, 8, 16, 128, 1024, 4096]) {
+    it(`N = ${n}, uniform noise, agrees to 1e-9 relative`, () => {
+      const x = noise(n, 1234 + n);
+      const ref = oracle.fft(x);
+      const { re, im } = new RealFft(n).forward(x);
+      let scale = 0;
+      for (let k = 0; k <= n / 2; k++) scale = Math.max(scale, Math.hypot(ref[k][0], ref[k][1]));
+      let worst = 0;
+      for (let k = 0; k <= n / 2; k++) {
+        worst = Math.max(worst, Math.abs(re[k] - ref[k][0]), Math.abs(im[k] - ref[k][1]));
+      }
+      expect(scale).toBeGreaterThan(0);
+      expect(worst / scale).toBeLessThan(1e-9);
+    });
+  }
+
+  it('reuses its buffers: a second call gives the same answer and writes the given outputs', () => {
+    const f = new RealFft(64);
+    const x = noise(64, 7);
+    const a = f.forward(x);
+    f.forward(noise(64, 8));
+    const re = new Float64Array(33);
+    const im = new Float64Array(33);
+    const b = f.forward(x, re, im);
+    expect(b.re).toBe(re);
+    for (let k = 0; k < 33; k++) {
+      expect(b.re[k]).toBeCloseTo(a.re[k], 12);
+      expect(b.im[k]).toBeCloseTo(a.im[k], 12);
+    }
+  });
+
+  it('zero-pads short input (DFT of a padded sequence, checked by the direct sum)', () => {
+    const x = [0.5, -1, 2];
+    const n = 8;
+    const { re, im } = new RealFft(n).forward(Float32Array.from(x));
+    for (let k = 0; k <= n / 2; k++) {
+      let sr = 0;
+      let si = 0;
+      for (let i = 0; i < x.length; i++) {
+        sr += x[i] * Math.cos((2 * Math.PI * k * i) / n);
+        si -= x[i] * Math.sin((2 * Math.PI * k * i) / n);
+      }
+      expect(re[k]).toBeCloseTo(sr, 12);
+      expect(im[k]).toBeCloseTo(si, 12);
+    }
+  });
+});
+
+describe('RealFft: a sine and Parseval', () => {
+  it('a sine on bin 37 of 1024 lands in bin 37 with |X| = A·N/2 (DFT of a sinusoid, Oppenheim & Schafer ch. 8)', () => {
+    const n = 1024;
+    const a = 0.3;
+    const x = Array.from({ length: n }, (_, i) => a * Math.sin((2 * Math.PI * 37 * i) / n + 0.4));
+    const p = new RealFft(n).powerSpectrum(x);
+    let peak = 0;
+    for (let k = 1; k < p.length; k++) if (p[k] > p[peak]) peak = k;
+    expect(peak).toBe(37);
+    // float64 rounding only: 1e-9 relative
+    expect(Math.sqrt(p[37])).toBeCloseTo((a * n) / 2, 6);
+    // an on-bin sine leaks nothing: every other bin is at rounding level
+    for (let k = 0; k < p.length; k++) if (k !== 37) expect(Math.sqrt(p[k])).toBeLessThan(1e-9);
+  });
+
+  it('Parseval: Σx² = (1/N)·Σ|X|² over all N bins (Parseval, Oppenheim & Schafer ch. 8), to 1e-12 relative', () => {
+    for (const n of [4, 256, 2048]) {
+      const x = noise(n, 99 + n);
+      const p = new RealFft(n).powerSpectrum(x);
+      let twoSided = p[0] + p[n / 2];
+      for (let k = 1; k < n / 2; k++) twoSided += 2 * p[k];
+      const energy = x.reduce((s, v) => s + v * v, 0);
+      expect(Math.abs(twoSided / n - energy) / energy).toBeLessThan(1e-12);
+    }
+  });
+});
+
+describe('RealFft.inverse', () => {
+  it('round-trips noise to 1e-12 for sizes 4…4096', () => {
+    for (const n of [4, 8, 32, 512, 4096]) {
+      const f = new RealFft(n);
+      const x = noise(n, 5 + n);
+      const { re, im } = f.forward(x);
+      const y = f.inverse(re, im);
+      let worst = 0;
+      for (let i = 0; i < n; i++) worst = Math.max(worst, Math.abs(y[i] - x[i]));
+      expect(worst).toBeLessThan(1e-12);
+    }
+  });
+
+  it('inverse of |X|² is the circular autocorrelation (Wiener–Khinchin), checked by the direct sum', () => {
+    const n = 64;
+    const f = new RealFft(n);
+    const x = noise(n, 42);
+    const p = f.powerSpectrum(x);
+    const r = f.inverse(p, new Float64Array(p.length));
+    for (const lag of [0, 1, 5, 31, 32, 63]) {
+      let s = 0;
+      for (let i = 0; i < n; i++) s += x[i] * x[(i + lag) % n];
+      expect(r[lag]).toBeCloseTo(s, 10);
+    }
+  });
+});
