@@ -17,14 +17,16 @@
  *    fs_a = fs/q (11.025 kHz for 44.1 kHz and maxHz 2 kHz), so the shortest period still spans ≥ 5.5
  *    samples. The filters are centred (zero-delay) Kaiser-windowed-sinc FIRs (J. F. Kaiser, in Kuo &
  *    Kaiser, *System Analysis by Digital Computer*, 1966; design formulas in Oppenheim & Schafer,
- *    *Discrete-Time Signal Processing*, 3rd ed., ch. 7, Kaiser window method), half-band stages when q is a power of two:
- *    the band to 0.2·fs_a (≥ 1.1·maxHz) passes, and what would alias onto it is ≥ 40 dB down.
+ *    *Discrete-Time Signal Processing*, 3rd ed., ch. 7, Kaiser window method), half-band stages
+ *    when q is a power of two: the band to 0.2·fs_a (≥ 1.1·maxHz) passes, and what would alias onto
+ *    it is ≥ 40 dB down.
  * 2. FFT difference function. d(τ) = e(0) + e(τ) − 2·c(τ), e from prefix sums of squares and
- *    c(τ) = Σ_{j<W} x[t+j]·x[t+j+τ] assembled from per-hop blocks of B samples: each block's spectrum
+ *    c(τ) = Σ_{j<W} x[t+j]·x[t+j+τ] assembled from blocks of B samples (a hop, or an equal part of
+ *    one when the hop exceeds half the longest lag, which keeps N small): each block's spectrum
  *    Xb (zero-padded to N ≥ B + τmax + 2, so the circular correlation does not wrap), the spectrum of
  *    the blocks that follow it, Sb = Σₗ X_{b+l}·e^(−j2πk·l·B/N), and c = IDFT(Σ over the window's
- *    blocks of conj(Xb)·Sb), kept as a running sum. One forward and one inverse 512-point FFT per hop
- *    (defaults), instead of three per frame.
+ *    blocks of conj(Xb)·Sb), kept as a running sum. Per hop (defaults): half a complex 512-point FFT
+ *    (two blocks' spectra at once) and one inverse, instead of three real FFTs per frame.
  * 3. Refinement. Where a period spans fewer than 40 analysis samples, the dip is refined on the
  *    original signal: d at the integer full-rate lags around the estimate, walked to the lowest, and the
  *    parabola through it and its neighbours, over max(2 periods, 5 ms) of the window.
@@ -42,7 +44,7 @@ import { RealFft, nextPowerOfTwo } from './fft.ts';
 
 /** Options of {@link yinPitchTrack}; every field has a default. */
 export interface YinOptions {
-  /** Frame hop, s (default 0.01; rounded to whole samples of the analysis rate, see PitchTrack.hopS). */
+  /** Frame hop, s (default 0.01; rounded to whole blocks of analysis samples, see PitchTrack.hopS). */
   hopS?: number;
   /** Lowest pitch searched, Hz (default 40): the longest lag is 1/minHz. */
   minHz?: number;
@@ -78,8 +80,9 @@ const MIN_PERIOD_SAMPLES = 5.5;
 
 /**
  * Periods shorter than this many analysis samples are refined on the full-rate signal. Measured with
- * band-limited sawtooth tones at an 11.025 kHz analysis rate: parabolic interpolation alone errs by
- * ≤ 0.13 % for periods ≥ 40 samples, but by up to 0.7 % near 8 samples.
+ * band-limited sawtooth tones 41 Hz…2 kHz at 44.1 kHz (11.025 kHz analysis rate): parabolic
+ * interpolation alone errs by ≤ 0.14 % for periods ≥ 40 samples but by up to 0.7 % at 6–10 samples;
+ * with the refinement the error stays ≤ 0.3 % over the whole range.
  */
 const REFINE_BELOW_SAMPLES = 40;
 
@@ -100,8 +103,8 @@ function besselI0(x: number): number {
  * Low-pass FIR for decimation by q: Kaiser-windowed sinc, cutoff (−6 dB) at the output Nyquist
  * frequency fs/(2q), transition band `transition`·fs/q wide centred on it, `rejectionDb` stop-band
  * rejection. Kaiser's formulas (Oppenheim & Schafer, *Discrete-Time Signal Processing*, 3rd ed.,
- * ch. 7, Kaiser window design method): β = 0.5842·(A−21)^0.4 + 0.07886·(A−21) for 21 < A ≤ 50 dB, order M = (A − 8)/(2.285·Δω) with
- * Δω the transition width in rad/sample, rounded up to even so the filter is centred. Taps sum to 1.
+ * ch. 7, Kaiser window design method): β = 0.5842·(A−21)^0.4 + 0.07886·(A−21) for 21 < A ≤ 50 dB,
+ * order M = (A − 8)/(2.285·Δω) with Δω the transition width in rad/sample, rounded up to even so the filter is centred. Taps sum to 1.
  * For q = 2 it is a half-band filter: every other tap is exactly 0.
  *
  * @param q decimation factor (integer ≥ 2)
@@ -235,7 +238,9 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
   const maxHz = opts.maxHz ?? 2000;
   const threshold = opts.threshold ?? 0.15;
   const windowS = opts.windowS ?? 1 / minHz;
-  if (!(hopS > 0) || !Number.isFinite(hopS)) throw new RangeError(`yinPitchTrack: opts.hopS must be > 0 s, got ${hopS}`);
+  if (!(hopS > 0) || !Number.isFinite(hopS)) {
+    throw new RangeError(`yinPitchTrack: opts.hopS must be > 0 s, got ${hopS}`);
+  }
   if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 4)) {
     throw new RangeError(
       `yinPitchTrack: need 0 < opts.minHz < opts.maxHz ≤ fs/4 = ${sampleRate / 4} Hz, got ${minHz}…${maxHz}`,
@@ -253,17 +258,21 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
   const x = decimate(signal, q);
   const n = x.length;
 
-  const hop = Math.max(1, Math.round(hopS * fsA));
   const tauMin = Math.max(2, Math.floor(fsA / maxHz));
   const tauMax = Math.ceil(fsA / minHz);
   const lags = tauMax + 2; // lags 0…tauMax+1 (the +1 for the right neighbour of a dip at tauMax)
-  const blocksPerWindow = Math.ceil(Math.max(windowS * fsA, tauMax) / hop);
-  const w = blocksPerWindow * hop;
+  // blocks of at most lags/2 samples keep the FFT near 2–4 × lags long; a hop is a whole number of them
+  const hopSamples = Math.max(1, Math.round(hopS * fsA));
+  const blocksPerHop = Math.ceil(hopSamples / Math.max(1, Math.floor(lags / 2)));
+  const block = Math.max(1, Math.round(hopSamples / blocksPerHop));
+  const hop = blocksPerHop * block;
+  const blocksPerWindow = Math.ceil(Math.max(windowS * fsA, tauMax) / block);
+  const w = blocksPerWindow * block;
   const frames = n >= w + lags ? Math.floor((n - w - lags) / hop) + 1 : 0;
 
   const cumSq = new Float64Array(n + 1);
   for (let i = 0; i < n; i++) cumSq[i + 1] = cumSq[i] + x[i] * x[i];
-  const correlator = new BlockCorrelator(x, hop, blocksPerWindow, lags);
+  const correlator = new BlockCorrelator(x, block, blocksPerWindow, lags);
   const corr = new Float64Array(correlator.size);
   const d = new Float64Array(lags);
   const dn = new Float64Array(lags);
@@ -273,10 +282,12 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
   const f0Hz = new Float32Array(frames).fill(Number.NaN);
   const aperiodicity = new Float32Array(frames).fill(1);
   const voiced: number[] = [];
-  for (let b = 0; b < frames + blocksPerWindow - 1; b++) {
+  const blocks = frames > 0 ? (frames - 1) * blocksPerHop + blocksPerWindow : 0;
+  for (let b = 0; b < blocks; b++) {
     correlator.advance(b);
-    if (b < blocksPerWindow - 1) continue;
-    const f = b - blocksPerWindow + 1;
+    const first = b - blocksPerWindow + 1; // first block of the window that ends with block b
+    if (first < 0 || first % blocksPerHop !== 0) continue;
+    const f = first / blocksPerHop;
     const t0 = f * hop;
     timesS[f] = (t0 + (w + tauMax) / 2) / fsA;
     const e0 = cumSq[t0 + w] - cumSq[t0];
@@ -350,7 +361,7 @@ class BlockCorrelator {
     lags: number,
   ) {
     this.ahead = Math.ceil(lags / hop);
-    this.ring = this.ahead + 2; // X_b … X_{b+ahead+1}
+    this.ring = this.ahead + 3; // X_b … X_{b+ahead+2} (spectra are made two at a time)
     this.size = nextPowerOfTwo((this.ahead + 1) * hop);
     this.fft = new RealFft(this.size);
     const bins = (this.bins = this.fft.bins);
@@ -373,15 +384,27 @@ class BlockCorrelator {
     this.qIm = new Float64Array(bins);
   }
 
-  private blockSpectrum(b: number): void {
-    const { x, hop, bins } = this;
-    const slot = (b % this.ring) * bins;
-    const start = Math.min(x.length, b * hop);
-    this.fft.forward(
-      x.subarray(start, Math.min(x.length, start + hop)),
-      this.xRe.subarray(slot, slot + bins),
-      this.xIm.subarray(slot, slot + bins),
-    );
+  /** Block spectra are made two at a time (one complex FFT); `made` is the last block done. */
+  private made = -1;
+
+  private blockSpectra(upTo: number): void {
+    const { x, hop, bins, xRe, xIm } = this;
+    while (this.made < upTo) {
+      const b0 = this.made + 1;
+      const s0 = (b0 % this.ring) * bins;
+      const s1 = ((b0 + 1) % this.ring) * bins;
+      const start0 = Math.min(x.length, b0 * hop);
+      const start1 = Math.min(x.length, start0 + hop);
+      this.fft.forwardPair(
+        x.subarray(start0, start1),
+        x.subarray(start1, Math.min(x.length, start1 + hop)),
+        xRe.subarray(s0, s0 + bins),
+        xIm.subarray(s0, s0 + bins),
+        xRe.subarray(s1, s1 + bins),
+        xIm.subarray(s1, s1 + bins),
+      );
+      this.made += 2;
+    }
   }
 
   /** S_b = Σ_l φˡ·X_{b+l} and Q = Σ of the stored products, summed afresh. */
@@ -415,10 +438,10 @@ class BlockCorrelator {
   advance(b: number): void {
     const bins = this.bins;
     if (b === 0) {
-      for (let l = 0; l <= this.ahead; l++) this.blockSpectrum(l);
+      this.blockSpectra(this.ahead);
       this.resync(0);
     }
-    this.blockSpectrum(b + this.ahead + 1);
+    this.blockSpectra(b + this.ahead + 1);
     blockStep(
       this.xRe,
       this.xIm,

@@ -3,11 +3,11 @@
  * frequency rows, whatever the clip length, with a bounded number of FFTs.
  *
  * Each column covers an equal share of the clip. Inside it, ⌈share/(size/2)⌉ Hann frames of `size`
- * samples (50 % overlap), but at most `maxFramesPerColumn`, are spread evenly and their one-sided
+ * samples (enough for 50 % overlap), at most `maxFramesPerColumn`, are spread evenly and their one-sided
  * power spectral densities averaged (the density scaling of welch.ts: FS²/Hz, Σ psd·binHz = mean
  * square). A five-minute clip at 44.1 kHz thus costs 1000 × 8 FFTs of 2048 points, frames 1654
- * samples apart (every sample covered); from about eight minutes on, the frames leave gaps between
- * them. Short clips get one frame per column and fewer columns (no finer than a quarter frame apart).
+ * samples apart (every sample covered); beyond about 6.2 minutes (8 × 2048 samples per column) the
+ * frames leave gaps. Short clips get one frame per column and fewer columns (a quarter frame apart).
  *
  * Rows: `rows` bands with log-spaced edges eᵣ = minHz·(maxHz/minHz)^(r/rows). A row's value is the
  * mean of the PSD over [eᵣ, eᵣ₊₁] with the PSD taken as piecewise linear between bin centres, i.e.
@@ -101,7 +101,9 @@ export function bandMeans(
 }
 
 function positiveInt(v: number, name: string): number {
-  if (!Number.isInteger(v) || v < 1) throw new RangeError(`displaySpectrogram: ${name} must be an integer ≥ 1, got ${v}`);
+  if (!Number.isInteger(v) || v < 1) {
+    throw new RangeError(`displaySpectrogram: ${name} must be an integer ≥ 1, got ${v}`);
+  }
   return v;
 }
 

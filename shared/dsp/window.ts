@@ -65,8 +65,8 @@ export interface WindowStats {
 
 /**
  * Coherent gain, equivalent noise bandwidth and scallop loss of a window, by Harris's definitions
- * (Proc. IEEE 66(1), 1978, the figures of merit of his Table I): CG = Σw/N; ENBW = N·Σw²/(Σw)² bins; scallop loss =
- * −20·log10(|W(½ bin)|/W(0)).
+ * (Proc. IEEE 66(1), 1978, the figures of merit of his Table I): CG = Σw/N;
+ * ENBW = N·Σw²/(Σw)² bins; scallop loss = −20·log10(|W(½ bin)|/W(0)).
  *
  * @param w window samples
  * @example windowStats(hannWindow(4096)) // → coherentGain 0.5, enbwBins 1.5, scallopLossDb ≈ 1.42

@@ -76,7 +76,7 @@ export function adviseGain(
   };
   const bound = overModulationBoundDb(clip, settings.allowedShare);
   // Grid from the bound downwards, on whole tenths so results are reproducible.
-  let top = Math.floor(bound / RESOLUTION_DB) * RESOLUTION_DB;
+  const top = Math.floor(bound / RESOLUTION_DB) * RESOLUTION_DB;
   let failAbove: Evaluation | null = null;
   let okEval: Evaluation | null = null;
   for (let db = top; db >= MIN_GAIN_DB - 1e-9; db -= 1) {
@@ -122,8 +122,17 @@ export function adviseGain(
     failAbove = hi;
   } else if (top < MAX_GAIN_DB) {
     // The scan started at the over-modulation bound and held there: over-modulation binds just above.
+    // The bound is known to 0.01 dB only (and bound/0.1 may floor one tenth low in binary), so the
+    // next tenth can still hold: climb until one fails.
     failAbove = evalAt(round1(top + RESOLUTION_DB));
-    top = failAbove.gainDb;
+    while (failAbove.ok && failAbove.gainDb < MAX_GAIN_DB - 1e-9) {
+      okEval = failAbove;
+      failAbove = evalAt(round1(failAbove.gainDb + RESOLUTION_DB));
+    }
+    if (failAbove.ok) {
+      okEval = failAbove;
+      failAbove = null;
+    }
   }
   return {
     advisedGainDb: okEval.gainDb,

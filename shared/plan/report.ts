@@ -42,7 +42,10 @@ export interface BudgetCurve {
   lengthsS: number[];
   /** Allowed fraction of full operation for a burst of each length (single-pulse Zth method). */
   budget: number[];
-  /** The clip's highest mean normalised power (or duty) over any window of each length, at the evaluated gain. */
+  /**
+   * The clip's highest mean normalised power (or duty) over any window of each length, at the evaluated
+   * gain; for a pass device its loss as a fraction of fullLossW.
+   */
   demand: number[];
   /** Where the worst window of each length starts, s. */
   demandAtS: number[];
@@ -140,8 +143,12 @@ export function preEmphasisAdvice(spec: WelchSpectrum, cornerHz: number): PreEmp
   };
 }
 
-/** Normalised demand per frame at a gain: E[v²]/V² (rail schemes) or on-time fraction (pulse). */
-function demandSeries(clip: PlanClip, driver: DriverProfile, gainDb: number): Float64Array {
+/**
+ * Normalised demand per frame at a gain: E[v²]/V² (rail schemes) or on-time fraction (pulse). For a
+ * linear pass device, whose full-operation loss is its worst, g·V²/4 at half rail, the demand is its
+ * own loss over that: g(V·E[v] − E[v²])/(g·V²/4) = 4(E[v]/V − E[v²]/V²).
+ */
+function demandSeries(clip: PlanClip, driver: DriverProfile, gainDb: number, role: DeviceRole = 'bridge'): Float64Array {
   const g = dbToAmp(gainDb);
   const n = clip.frames.count;
   const out = new Float64Array(n);
@@ -149,22 +156,23 @@ function demandSeries(clip: PlanClip, driver: DriverProfile, gainDb: number): Fl
     const train = pulsesAtGain(clip.pulseEvents, g, driver.pulse);
     const f = clip.frames.frameS;
     for (let i = 0; i < train.count; i++) {
-      // Spread each pulse over the frames it covers.
-      let t = train.startS[i];
-      const end = t + train.onS[i];
-      while (t < end) {
-        const k = Math.floor(t / f);
-        if (k >= n) break;
-        const stop = Math.min(end, (k + 1) * f);
-        out[k] += (stop - t) / f;
-        t = stop;
+      // Spread each pulse over the frames it covers, by frame index (stepping by time can stall
+      // where k·f rounds below t).
+      const start = train.startS[i];
+      const end = start + train.onS[i];
+      const k1 = Math.min(n - 1, Math.floor(end / f));
+      for (let k = Math.max(0, Math.floor(start / f)); k <= k1; k++) {
+        const overlap = Math.min(end, (k + 1) * f) - Math.max(start, k * f);
+        if (overlap > 0) out[k] += overlap / f;
       }
     }
     return out;
   }
   const v2 = driver.supplyVoltageV ** 2;
   const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, createScratch(clip));
-  for (let k = 0; k < n; k++) out[k] = rail.meanSquareV2[k] / v2;
+  const vs = driver.supplyVoltageV;
+  if (role === 'pass') for (let k = 0; k < n; k++) out[k] = Math.max(0, 4 * (rail.meanV[k] / vs - rail.meanSquareV2[k] / v2));
+  else for (let k = 0; k < n; k++) out[k] = rail.meanSquareV2[k] / v2;
   return out;
 }
 
@@ -202,13 +210,14 @@ export function planClipReport(
   });
 
   const lengths = logSpacedLengthsS(0.001, Math.max(0.001, clip.durationS), 4);
-  const demand = maxWindowMean(demandSeries(clip, driver, Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity), clip.frames.frameS, lengths);
+  const demandGainDb = Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity;
   const fullLoss = fullOperationLossW(driver, coil, settings.ambientC);
   const used = driver.devices.map((d, i) => ({ d, i })).filter(({ d }) => sim.devices.some((s) => s.role === d.role));
   const budget: BudgetCurve[] = used.map(({ d, i }) => {
     const net = ThermalNetwork.fromPath(d.thermal);
     const allowedRiseK = d.tjMaxC - settings.marginK - settings.ambientC;
     const b = dutyBudget(lengths, allowedRiseK, fullLoss[i], (t) => net.zthKPerW(t));
+    const demand = maxWindowMean(demandSeries(clip, driver, demandGainDb, d.role), clip.frames.frameS, lengths);
     return {
       role: d.role,
       fullLossW: fullLoss[i],

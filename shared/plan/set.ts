@@ -82,8 +82,12 @@ export function recoveryGapS(
   const frameS = 0.1;
   const sim = idle(driver, coil, state, MAX_RECOVERY_GAP_S, ambientC, frameS);
   const n = sim.devices[0].traces!.junctionC.length;
+  // Junction at the end of idle frame k. The pulse scheme's trace holds each frame's maximum, which in
+  // frame 0 includes the starting temperature: take that frame's end from a one-frame run instead.
+  const endOfFirst = idle(driver, coil, state, frameS, ambientC, frameS).finalState;
+  const junctionAt = (k: number, d: number) => (k === 0 ? ambientC + endOfFirst[d][0] : sim.devices[d].traces!.junctionC[k]);
   for (let k = 0; k < n; k++) {
-    if (recovered((d) => sim.devices[d].traces!.junctionC[k])) return (k + 1) * frameS;
+    if (recovered((d) => junctionAt(k, d))) return (k + 1) * frameS;
   }
   return null;
 }

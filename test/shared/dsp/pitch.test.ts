@@ -48,7 +48,7 @@ describe('yinPitchTrack: periodic signals of known pitch', () => {
 
   // Missing fundamental ("residue pitch", Schouten 1940 [recalled]): the period of harmonics 2…6 of
   // f0 is 1/f0 although no energy lies at f0; YIN finds the period, not the strongest partial.
-  it('missing fundamental: harmonics 2–6 of 200 Hz read 200 Hz, harmonics 2–5 of 330 Hz at 48 kHz read 330 Hz', () => {
+  it('missing fundamental: harmonics 2–6 of 200 Hz, and 2–5 of 330 Hz at 48 kHz, read f0', () => {
     const a = yinPitchTrack(harmonic(200, [0, 0.3, 0.3, 0.3, 0.3, 0.3], 0.5, fs), fs);
     expect(a.voicedFraction).toBe(1);
     for (const v of voicedValues(a.f0Hz)) expect(relErr(v, 200)).toBeLessThan(0.005);
@@ -79,6 +79,21 @@ describe('yinPitchTrack: periodic signals of known pitch', () => {
     expect(t.timesS[1] - t.timesS[0]).toBeCloseTo(t.hopS, 12);
     expect(t.medianHz).toBeGreaterThan(219);
     expect(t.medianHz).toBeLessThan(331);
+  });
+
+  it('a hop of two default hops (two blocks per hop) gives every other frame of the default track', () => {
+    const x = harmonic(261.63, [0.4, 0.2, 0.1], 1, fs);
+    const a = yinPitchTrack(x, fs);
+    const b = yinPitchTrack(x, fs, { hopS: 220 / 11025 });
+    expect(b.hopS).toBeCloseTo(220 / 11025, 12);
+    // 20 ms rounds to 221 analysis samples, split into two blocks of 111
+    expect(yinPitchTrack(x, fs, { hopS: 0.02 }).hopS).toBeCloseTo(222 / 11025, 12);
+    expect(b.f0Hz.length).toBe(Math.floor((a.f0Hz.length - 1) / 2) + 1);
+    for (let f = 0; f < b.f0Hz.length; f++) {
+      expect(b.timesS[f]).toBeCloseTo(a.timesS[2 * f], 12);
+      // same window, same arithmetic up to the order of the running sums: 1e-6 relative
+      expect(Math.abs(b.f0Hz[f] - a.f0Hz[2 * f]) / a.f0Hz[2 * f]).toBeLessThan(1e-6);
+    }
   });
 });
 
@@ -170,7 +185,8 @@ describe('decimation filter (Kaiser window design, Oppenheim & Schafer ch. 7)', 
   };
 
   for (const q of [4, 3]) {
-    it(`decimate by ${q} (${q === 4 ? 'half-band cascade' : 'single stage'}): pass band flat, aliases onto it ≥ 40 dB down`, () => {
+    const kind = q === 4 ? 'half-band cascade' : 'single stage';
+    it(`decimate by ${q} (${kind}): pass band flat, aliases onto it ≥ 40 dB down`, () => {
       const fa = 44100 / q;
       // pass band 0…0.2·fa: within the 40 dB Kaiser ripple (±0.1 dB)
       for (const r of [0.05, 0.1, 0.2]) expect(Math.abs(throughDb(r * fa, q))).toBeLessThan(0.15);

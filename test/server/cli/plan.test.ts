@@ -1,0 +1,163 @@
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { encodeWav } from '../../../server/audio/wav.ts';
+import type { CliIo } from '../../../server/cli/io.ts';
+import { main } from '../../../server/cli/main.ts';
+import { DEMO_COILS } from '../../../shared/demo/coils.ts';
+import { DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
+
+// Short synthesised clips (1 s at 8 kHz, float WAV) keep each run to a fraction of a second.
+const FS = 8000;
+const dir = mkdtempSync(join(tmpdir(), 'coilcue-plan-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+const write = (name: string, data: string | Uint8Array): string => {
+  writeFileSync(join(dir, name), data);
+  return name;
+};
+const wav = (name: string, amp: number, seconds = 1, hz = 220) =>
+  write(name, encodeWav({ sampleRate: FS, channels: [Float32Array.from({ length: seconds * FS }, (_, i) => amp * Math.sin((2 * Math.PI * hz * i) / FS))] }, { format: 'f32' }));
+
+const loud = wav('loud.wav', 0.5);
+const quiet = wav('quiet.wav', 0.2);
+const coil = write('coil.json', JSON.stringify(DEMO_COILS['desk-lantern']));
+const linear = write('linear.json', JSON.stringify(DEMO_DRIVER_LINEAR));
+const pulse = write('pulse.json', JSON.stringify(DEMO_DRIVER_PULSE));
+
+function captureIo(): CliIo & { stdout: string; stderr: string } {
+  const io = { stdout: '', stderr: '', errIsTty: false, cwd: dir, out(t: string) { io.stdout += t; }, err(t: string) { io.stderr += t; } };
+  return io;
+}
+async function run(...argv: string[]) {
+  const io = captureIo();
+  const code = await main(['plan', ...argv], io);
+  return { code, out: io.stdout, err: io.stderr };
+}
+
+describe('coilcue plan (one clip)', () => {
+  it('--json carries the keys other tools read', async () => {
+    const { code, out, err } = await run('--clip', loud, '--coil', coil, '--driver', linear, '--json');
+    expect(err).toBe('');
+    expect(code).toBe(0);
+    const r = JSON.parse(out);
+    expect(typeof r.advisedGainDb).toBe('number');
+    // A 0.5-peak sine over-modulates above 20·log10(2) = 6.02 dB; the demo's sinks keep it cool.
+    expect(r.advisedGainDb).toBeCloseTo(6.0, 9);
+    expect(r.binding).toMatchObject({ limit: 'over-modulation', role: null });
+    expect(r.binding).toHaveProperty('atS');
+    expect(r.evaluatedGainDb).toBe(r.advisedGainDb);
+    expect(r.devices.map((d: { role: string }) => d.role)).toEqual(['bridge', 'pass']);
+    for (const d of r.devices) {
+      for (const k of ['peakJunctionC', 'meanLossW', 'tjMaxC']) expect(typeof d[k]).toBe('number');
+    }
+    expect(typeof r.supply.peakCurrentA).toBe('number');
+    expect(typeof r.supply.meanCurrentA).toBe('number');
+    expect(typeof r.overModulationFraction).toBe('number');
+    // Rail-linear, zero-mean tone: the supply carries g·V_s/2 = 1.5 A on average (demo: 3 A at 48 V).
+    expect(r.supply.meanCurrentA).toBeCloseTo(1.5, 3);
+  });
+
+  it('prints the readable answer, and evaluates at --gain-db when given', async () => {
+    // A negative value needs the = form: node's parseArgs reads "-3" after a flag as another flag.
+    const { code, out } = await run('--clip', loud, '--coil', coil, '--driver', pulse, '--gain-db=-3');
+    expect(code).toBe(0);
+    expect(out).toMatch(/advised gain: \d+\.\d dB/);
+    expect(out).toMatch(/evaluated at -3\.0 dB:/);
+    expect(out).toMatch(/pulses \d+: on-time clamped/);
+    expect(out).toMatch(/headroom of every limit at that gain:/);
+  });
+
+  it('--trace writes the per-frame CSV', async () => {
+    const { code } = await run('--clip', quiet, '--coil', coil, '--driver', linear, '--trace', 'trace.csv');
+    expect(code).toBe(0);
+    const lines = readFileSync(join(dir, 'trace.csv'), 'utf8').trimEnd().split('\n');
+    expect(lines[0]).toBe('timeS,bridgeLossW,bridgeJunctionC,passLossW,passJunctionC');
+    // 1 s on 1 ms frames.
+    expect(lines).toHaveLength(1 + 1000);
+    expect(lines[1].split(',')[0]).toBe('0.000000');
+  });
+
+  it('writes null for the gain when a driver overheats on silence (no ±Infinity in JSON)', async () => {
+    const hot = structuredClone(DEMO_DRIVER_LINEAR);
+    // Pass device without sink mass on 10.6 K/W and a 60 °C Tj max: 36 W idle, and still ≥ 18 W at full
+    // modulation, heats its ≈ 0.56 J/K of junction–case capacity (the demo's Foster set, Σ τᵢ/Rᵢ) by more
+    // than the 10 K it may rise within the 1 s clip.
+    hot.devices[1].tjMaxC = 60;
+    hot.devices[1].thermal.sinkToAmbientKPerW = 10;
+    hot.devices[1].thermal.sinkHeatCapacityJPerK = 0;
+    const file = write('hot.json', JSON.stringify(hot));
+    const { code, out } = await run('--clip', quiet, '--coil', coil, '--driver', file, '--json');
+    expect(code).toBe(0);
+    const r = JSON.parse(out);
+    expect(r.advisedGainDb).toBeNull();
+    expect(r.evaluatedGainDb).toBeNull();
+    expect(r.unsafeOnSilence).toBe(true);
+    expect(r.warnings[0]).toMatch(/even on silence/);
+  });
+});
+
+describe('coilcue plan --set', () => {
+  it('--json gives per-item figures and the first failing item; clip paths are relative to the set file', async () => {
+    mkdirSync(join(dir, 'show'), { recursive: true });
+    write(
+      'show/set.json',
+      JSON.stringify({ coil: '../coil.json', driver: '../pulse.json', items: [{ clip: '../loud.wav', gapAfterS: 5, gainDb: null }, { clip: '../quiet.wav' }] }),
+    );
+    const { code, out, err } = await run('--set', 'show/set.json', '--json');
+    expect(err).toBe('');
+    expect(code).toBe(0);
+    const s = JSON.parse(out);
+    expect(s).toHaveProperty('firstFailingItem', null);
+    expect(s.items).toHaveLength(2);
+    expect(s.items[0].clip).toBe('../loud.wav');
+    for (const it of s.items) {
+      expect(typeof it.advisedGainDb).toBe('number');
+      expect(typeof it.peakJunctionC).toBe('number');
+      expect(it).toHaveProperty('minGapAfterS');
+    }
+    expect(s.items[1].gapAfterS).toBe(0);
+  });
+
+  it('--common-gain plays every item at the lowest advice', async () => {
+    write('set2.json', JSON.stringify({ coil: 'coil.json', driver: 'linear.json', items: [{ clip: loud, gapAfterS: 1 }, { clip: quiet }] }));
+    const { code, out } = await run('--set', 'set2.json', '--json', '--common-gain');
+    expect(code).toBe(0);
+    const s = JSON.parse(out);
+    expect(s.gainMode).toBe('common');
+    const advised = s.items.map((i: { advisedGainDb: number }) => i.advisedGainDb);
+    expect(s.items.map((i: { gainDb: number }) => i.gainDb)).toEqual([Math.min(...advised), Math.min(...advised)]);
+    const text = await run('--set', 'set2.json');
+    expect(text.out).toMatch(/^set of 2 clips, gain advised per clip/);
+    expect(text.out).toMatch(/every clip keeps every limit/);
+  });
+});
+
+describe('coilcue plan: bad input exits 2 with one line naming the problem', () => {
+  const badDriver = structuredClone(DEMO_DRIVER_LINEAR);
+  badDriver.devices[0].tjMaxC = 400;
+  write('bad-driver.json', JSON.stringify(badDriver));
+  write('bad-set.json', JSON.stringify({ coil: 'coil.json', driver: 'linear.json', items: [{ clip: loud, gapAfterS: -5 }] }));
+  write('set-missing-clip.json', JSON.stringify({ coil: 'coil.json', driver: 'linear.json', items: [{ clip: 'nowhere.wav' }] }));
+
+  it.each([
+    ['no driver', ['--clip', 'loud.wav', '--coil', 'coil.json'], /give --clip, --coil and --driver/],
+    ['a gain that is not a number', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', 'loud'], /--gain-db must be a number, got "loud"/],
+    ['a gain out of range', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', '50'], /--gain-db must be at most 40/],
+    ['a bad driver field', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'bad-driver.json'], /devices\.0\.tjMaxC/],
+    ['a missing driver file', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'nope.json'], /cannot read driver profile "nope\.json"/],
+    ['a bad set field', ['--set', 'bad-set.json'], /items\.0\.gapAfterS/],
+    ['a set whose clip is missing', ['--set', 'set-missing-clip.json'], /nowhere\.wav/],
+    ['--set with --clip', ['--set', 'bad-set.json', '--clip', 'loud.wav'], /--set takes its coil, driver, clips and gains from the set file/],
+    ['an unknown channel', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--channel', 'centre'], /--channel must be one of mix, left, right/],
+  ])('%s', async (_what, argv, message) => {
+    const { code, out, err } = await run(...argv);
+    expect(code).toBe(2);
+    expect(out).toBe('');
+    expect(err).toMatch(message);
+    expect(err.startsWith('coilcue plan: ')).toBe(true);
+    expect(err.endsWith('\n')).toBe(true);
+    expect(err.trimEnd()).not.toContain('\n');
+  });
+});
