@@ -11,11 +11,29 @@ export function parseCommandArgs<T extends NonNullable<ParseArgsConfig['options'
   usage: string,
 ) {
   try {
-    return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
+    return parseArgs({ args: joinNegativeValues(argv, options), allowPositionals: true, options, strict: true });
   } catch (e) {
     const msg = e instanceof Error ? e.message.split('\n')[0] : String(e);
     throw new InputError('bad-arguments', `${msg}. Usage: ${usage}`);
   }
+}
+
+/**
+ * node:util parseArgs reads `--gain-db -3` as a flag followed by an unknown flag `-3`; a value
+ * option followed by a negative number is joined into `--gain-db=-3` first.
+ */
+function joinNegativeValues(argv: string[], options: NonNullable<ParseArgsConfig['options']>): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    const next = argv[i + 1];
+    const name = a.startsWith('--') ? a.slice(2) : '';
+    if (options[name]?.type === 'string' && next !== undefined && /^-(\d|\.\d|inf)/i.test(next)) {
+      out.push(`${a}=${next}`);
+      i++;
+    } else out.push(a);
+  }
+  return out;
 }
 
 /** A flag that must parse as a finite number; names the flag and the value when it does not. */

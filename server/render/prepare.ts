@@ -105,20 +105,3 @@ export function refuseOverwriteOfInput(cwd: string, clip: string, out: string): 
   }
 }
 
-/**
- * node:util parseArgs reads "-3" after a flag as an unknown option, so `--gain-db -3` would fail.
- * This joins a number flag with a following negative number into one token (`--gain-db=-3`).
- * @example joinNegativeValues(['--gain-db', '-3'], ['gain-db']) // ['--gain-db=-3']
- */
-export function joinNegativeValues(argv: string[], numberFlags: readonly string[]): string[] {
-  const out: string[] = [];
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    const next = argv[i + 1];
-    if (a.startsWith('--') && numberFlags.includes(a.slice(2)) && next !== undefined && /^-(\d|\.\d|inf)/i.test(next)) {
-      out.push(`${a}=${next}`);
-      i++;
-    } else out.push(a);
-  }
-  return out;
-}

@@ -6,7 +6,7 @@ import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '
 import { ampToDb, finiteOrNull } from '../../../shared/units.ts';
 import { type WavSampleFormat, encodeWav, writeWavAtomic } from '../../audio/wav.ts';
 import { quantisationMargin } from '../../render/render-clip.ts';
-import { RENDER_CAUTION, chooseGain, prepareJob, joinNegativeValues, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
+import { RENDER_CAUTION, chooseGain, prepareJob, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 
@@ -81,7 +81,7 @@ export const previewCommand: Command = {
   usage: USAGE,
   async run(argv: string[], io: CliIo): Promise<number> {
     const { values, positionals } = parseCommandArgs(
-      joinNegativeValues(argv, ['gain-db']),
+      argv,
       {
         clip: { type: 'string' },
         coil: { type: 'string' },

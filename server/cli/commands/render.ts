@@ -8,7 +8,7 @@ import { finiteOrNull } from '../../../shared/units.ts';
 import { DEFAULT_MAX_BYTES, DEFAULT_MAX_DURATION_S, decodeAudioBytes } from '../../audio/decode.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
 import { type ClosedLoopReport, closedLoopCheck, formatLimitValue, limitLabel } from '../../render/closed-loop.ts';
-import { type GainChoice, RENDER_CAUTION, chooseGain, prepareJob, joinNegativeValues, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
+import { type GainChoice, RENDER_CAUTION, chooseGain, prepareJob, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
 import { type PreEmphasis, type RenderedModulation, encodeRender, renderGraph, renderModulation } from '../../render/render-clip.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
@@ -143,7 +143,7 @@ export const renderCommand: Command = {
   usage: USAGE,
   async run(argv: string[], io: CliIo): Promise<number> {
     const { values, positionals } = parseCommandArgs(
-      joinNegativeValues(argv, ['gain-db', 'pre-emphasis-db', 'ceiling-dbfs']),
+      argv,
       {
         clip: { type: 'string' },
         coil: { type: 'string' },
