@@ -17,6 +17,7 @@ import { InputError } from '../errors.ts';
 import { kWeightingCoeffs, type KWeightingCoeffs } from './k-weighting.ts';
 import { INTEGRATED_RELATIVE_GATE_LU, gate, loudnessLufs } from './gating.ts';
 import { loudnessRangeLu } from './loudness-range.ts';
+import { checkChannels } from './check-channels.ts';
 
 /** Hop between successive momentary/short-term values and gating blocks, s (75 % overlap of 400 ms). */
 export const BLOCK_HOP_S = 0.1;
@@ -183,20 +184,7 @@ export function measureLoudness(
   sampleRate: number,
   opts: { channelWeights?: number[] } = {},
 ): LoudnessReport {
-  if (!Array.isArray(channels) || channels.length === 0) {
-    throw new RangeError('measureLoudness: channels must be a non-empty array of Float32Array');
-  }
-  for (const [i, ch] of channels.entries()) {
-    if (!(ch instanceof Float32Array)) throw new TypeError(`measureLoudness: channels[${i}] is not a Float32Array`);
-    if (ch.length !== channels[0].length) {
-      throw new RangeError(
-        `measureLoudness: channels[${i}] has ${ch.length} samples, channels[0] has ${channels[0].length}`,
-      );
-    }
-  }
-  if (!(Number.isFinite(sampleRate) && sampleRate > 0)) {
-    throw new RangeError(`measureLoudness: sampleRate must be a positive finite number of Hz, got ${sampleRate}`);
-  }
+  checkChannels('measureLoudness', channels, sampleRate);
   if (sampleRate < MIN_LOUDNESS_SAMPLE_RATE_HZ) {
     throw new InputError(
       'unsupported-sample-rate',

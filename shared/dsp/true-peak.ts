@@ -16,6 +16,7 @@
  *   unnecessary and omitted.
  */
 import { ampToDb } from '../units.ts';
+import { checkChannels } from './check-channels.ts';
 
 /** Polyphase branch 0 of the BS.1770-4 Annex 2 interpolation filter (12 taps, exact binary fractions). */
 export const TRUE_PEAK_PHASE0: readonly number[] = [
@@ -175,20 +176,7 @@ export interface TruePeakReport {
  * @example measureTruePeak([fsOver4SineAt45Deg], 48000).truePeakDbtp // → −6.0 dBTP (samples −9.03 dBFS)
  */
 export function measureTruePeak(channels: Float32Array[], sampleRate: number): TruePeakReport {
-  if (!Array.isArray(channels) || channels.length === 0) {
-    throw new RangeError('measureTruePeak: channels must be a non-empty array of Float32Array');
-  }
-  for (const [i, ch] of channels.entries()) {
-    if (!(ch instanceof Float32Array)) throw new TypeError(`measureTruePeak: channels[${i}] is not a Float32Array`);
-    if (ch.length !== channels[0].length) {
-      throw new RangeError(
-        `measureTruePeak: channels[${i}] has ${ch.length} samples, channels[0] has ${channels[0].length}`,
-      );
-    }
-  }
-  if (!(Number.isFinite(sampleRate) && sampleRate > 0)) {
-    throw new RangeError(`measureTruePeak: sampleRate must be a positive finite number of Hz, got ${sampleRate}`);
-  }
+  checkChannels('measureTruePeak', channels, sampleRate);
   const perChannelLinear = channels.map(channelTruePeakLinear);
   const truePeakLinear = Math.max(...perChannelLinear);
   return { truePeakLinear, truePeakDbtp: ampToDb(truePeakLinear), perChannelLinear };
