@@ -18,7 +18,7 @@ import type { CoilAtResonance, ThermalState } from '../physics/driver/types.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
 import { fractionAbove } from '../dsp/histogram.ts';
 import { ampToDb } from '../units.ts';
-import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, createScratch, evaluateAtGain } from './evaluate.ts';
+import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, createScratch, evaluateAtGain, pulseLimitsFail } from './evaluate.ts';
 
 export const MAX_GAIN_DB = 40;
 export const MIN_GAIN_DB = -60;
@@ -74,23 +74,33 @@ export function adviseGain(
     evaluations++;
     return evaluateAtGain(clip, coil, driver, db, settings, { initial: opts.initial, scratch });
   };
+  // A probe is a full evaluation, or, in the pulse scheme, a cheap refusal: the pulse limits (on-time
+  // and duty shares) need only the pulse train, not the thermal simulation, and a gain they fail
+  // fails whatever the temperatures. This is exact: no monotonicity is assumed.
+  type Probe = { gainDb: number; ok: boolean; e: Evaluation | null };
+  const probe = (db: number): Probe => {
+    if (pulseLimitsFail(clip, driver, db, settings, scratch)) return { gainDb: db, ok: false, e: null };
+    const e = evalAt(db);
+    return { gainDb: db, ok: e.ok, e };
+  };
+  const full = (p: Probe): Evaluation => p.e ?? evalAt(p.gainDb);
   const bound = overModulationBoundDb(clip, settings.allowedShare);
   // Grid from the bound downwards, on whole tenths so results are reproducible.
   const top = Math.floor(bound / RESOLUTION_DB) * RESOLUTION_DB;
-  let failAbove: Evaluation | null = null;
-  let okEval: Evaluation | null = null;
+  let failAbove: Probe | null = null;
+  let okProbe: Probe | null = null;
   for (let db = top; db >= MIN_GAIN_DB - 1e-9; db -= 1) {
-    const e = evalAt(round1(db));
-    if (e.ok) {
-      okEval = e;
+    const p = probe(round1(db));
+    if (p.ok) {
+      okProbe = p;
       break;
     }
-    failAbove = e;
+    failAbove = p;
   }
-  if (!okEval) {
+  if (!okProbe) {
     const silent = evaluateAtGain(clip, coil, driver, -Infinity, settings, { initial: opts.initial, scratch });
     evaluations++;
-    const lowest = failAbove!;
+    const lowest = full(failAbove!);
     return {
       advisedGainDb: null,
       binding: silent.worst ?? lowest.worst,
@@ -100,44 +110,40 @@ export function adviseGain(
       overModulationBoundDb: bound,
     };
   }
-  // Bisection on the 0.1 dB grid between okEval (holds) and failAbove (fails), when there is one.
+  // Bisection on the 0.1 dB grid between okProbe (holds) and failAbove (fails), when there is one.
   if (failAbove) {
-    let lo = okEval;
-    let hi = failAbove;
     // Work in whole tenths of a dB so the interval always shrinks.
-    let loT = Math.round(lo.gainDb * 10);
-    let hiT = Math.round(hi.gainDb * 10);
+    let loT = Math.round(okProbe.gainDb * 10);
+    let hiT = Math.round(failAbove.gainDb * 10);
     while (hiT - loT > 1) {
       const midT = Math.floor((loT + hiT) / 2);
-      const e = evalAt(midT / 10);
-      if (e.ok) {
-        lo = e;
+      const p = probe(midT / 10);
+      if (p.ok) {
+        okProbe = p;
         loT = midT;
       } else {
-        hi = e;
+        failAbove = p;
         hiT = midT;
       }
     }
-    okEval = lo;
-    failAbove = hi;
   } else if (top < MAX_GAIN_DB) {
     // The scan started at the over-modulation bound and held there: over-modulation binds just above.
     // The bound is known to 0.01 dB only (and bound/0.1 may floor one tenth low in binary), so the
     // next tenth can still hold: climb until one fails.
-    failAbove = evalAt(round1(top + RESOLUTION_DB));
+    failAbove = probe(round1(top + RESOLUTION_DB));
     while (failAbove.ok && failAbove.gainDb < MAX_GAIN_DB - 1e-9) {
-      okEval = failAbove;
-      failAbove = evalAt(round1(failAbove.gainDb + RESOLUTION_DB));
+      okProbe = failAbove;
+      failAbove = probe(round1(failAbove.gainDb + RESOLUTION_DB));
     }
     if (failAbove.ok) {
-      okEval = failAbove;
+      okProbe = failAbove;
       failAbove = null;
     }
   }
   return {
-    advisedGainDb: okEval.gainDb,
-    binding: failAbove?.worst ?? null,
-    atAdvised: okEval,
+    advisedGainDb: okProbe.gainDb,
+    binding: failAbove ? full(failAbove).worst : null,
+    atAdvised: full(okProbe),
     evaluations,
     unsafeOnSilence: false,
     overModulationBoundDb: bound,

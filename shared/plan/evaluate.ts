@@ -121,6 +121,18 @@ export function railAtGain(frames: FrameStats, gain: number, supplyV: number, ou
   return { meanV: out.meanV.subarray(0, n), meanSquareV2: out.meanSquareV2.subarray(0, n), firstOverModS: first };
 }
 
+/**
+ * True when the pulse limits alone (shares of pulses clamped by on-time or duty) fail at `gainDb`:
+ * the cheap part of an evaluation, no thermal simulation. Always false for rail schemes.
+ */
+export function pulseLimitsFail(clip: PlanClip, driver: DriverProfile, gainDb: number, settings: PlanSettings, scratch: EvalScratch): boolean {
+  if (driver.scheme !== 'pulse' || !clip.pulseEvents || !driver.pulse) return false;
+  const train = pulsesAtGain(clip.pulseEvents, dbToAmp(gainDb), driver.pulse, scratch.train);
+  scratch.train = train;
+  const denom = Math.max(1, train.events);
+  return train.onTimeClamped / denom > settings.allowedShare || train.dutyClamped / denom > settings.allowedShare;
+}
+
 function check(limit: LimitName, role: DeviceRole | null, value: number, allowed: number, unit: LimitCheck['unit'], atS: number | null): LimitCheck {
   return { limit, role, value, allowed, unit, headroom: allowed - value, ok: value <= allowed, atS };
 }
