@@ -87,7 +87,7 @@ export function recoveryGapS(
   const endOfFirst = idle(driver, coil, state, frameS, ambientC, frameS).finalState;
   const junctionAt = (k: number, d: number) => (k === 0 ? ambientC + endOfFirst[d][0] : sim.devices[d].traces!.junctionC[k]);
   for (let k = 0; k < n; k++) {
-    if (recovered((d) => junctionAt(k, d))) return (k + 1) * frameS;
+    if (recovered((d) => junctionAt(k, d))) return Math.round((k + 1) * frameS * 10) / 10; // whole tenths of a second
   }
   return null;
 }
