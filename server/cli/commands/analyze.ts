@@ -7,6 +7,7 @@ import { decodeAudioFile } from '../../audio/decode.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { CliIo, Command } from '../io.ts';
 import { progressBar } from '../progress.ts';
+import { alignRows } from '../format.ts';
 
 const USAGE = 'coilcue analyze <file> [--json] [--channel mix|left|right] [--frame-ms N]';
 const CHANNELS = ['mix', 'left', 'right'] as const;
@@ -57,8 +58,7 @@ export function formatAnalysis(file: string, s: AnalysisSummary): string {
   for (const b of s.spectrum.bands) {
     rows.push([`  ${b.name} ${b.lowHz}-${b.highHz} Hz`, `${(b.fraction * 100).toFixed(1)} % of energy`]);
   }
-  const w = Math.max(...rows.map(([k]) => k.length));
-  return rows.map(([k, v]) => `${k.padEnd(w)}  ${v}`).join('\n') + '\n';
+  return alignRows(rows).join('\n') + '\n';
 }
 
 export const analyzeCommand: Command = {

@@ -6,32 +6,12 @@ import { msToS } from '../../../shared/units.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 import { readJsonFile } from '../read-json.ts';
+import { formatEng } from '../format.ts';
+
+export { formatEng };
 
 const USAGE =
   'coilcue coil <coil.json> | --demo <name> [--json] [--supply-v <V>] [--rail-current-a <A>] [--on-time-ms <ms>] [--input-power-w <W>] [--wire-temp-c <°C>]';
-
-const PREFIXES: ReadonlyArray<[number, string]> = [
-  [-15, 'f'], [-12, 'p'], [-9, 'n'], [-6, 'µ'], [-3, 'm'], [0, ''], [3, 'k'], [6, 'M'], [9, 'G'],
-];
-
-/**
- * Engineering notation with three significant figures and an SI prefix: 0.0287 H → "28.7 mH",
- * 6.1e-12 F → "6.10 pF", 380400 Hz → "380 kHz". Null → "—". Exported for tests.
- */
-export function formatEng(value: number | null, unit: string): string {
-  if (value === null || !Number.isFinite(value)) return '—';
-  if (value === 0) return `0 ${unit}`;
-  let exp = Math.floor(Math.log10(Math.abs(value)) / 3) * 3;
-  exp = Math.min(9, Math.max(-15, exp));
-  let mant = Number((value / 10 ** exp).toPrecision(3));
-  if (Math.abs(mant) >= 1000 && exp < 9) {
-    exp += 3;
-    mant = Number((value / 10 ** exp).toPrecision(3));
-  }
-  const prefix = PREFIXES.find(([e]) => e === exp)?.[1] ?? '';
-  const digits = Math.abs(mant) >= 100 ? 0 : Math.abs(mant) >= 10 ? 1 : 2;
-  return `${mant.toFixed(digits)} ${prefix}${unit}`;
-}
 
 const pct = (x: number | null): string => (x === null ? '—' : `${x >= 0 ? '+' : ''}${x.toFixed(1)} %`);
 const num3 = (x: number | null): string => (x === null ? '—' : Math.abs(x) >= 1000 ? Math.round(x).toString() : x.toPrecision(3));

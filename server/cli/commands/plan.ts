@@ -15,7 +15,7 @@ import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { CliIo, Command } from '../io.ts';
 import { readJsonFile } from '../read-json.ts';
 import { loadAndAnalyze } from './analyze.ts';
-import { formatEng } from './coil.ts';
+import { formatEng } from '../format.ts';
 
 const USAGE =
   'coilcue plan --clip <audio> --coil <coil.json> --driver <driver.json> [--gain-db G] [--json] [--trace out.csv] ' +

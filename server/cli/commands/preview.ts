@@ -9,6 +9,7 @@ import { quantisationMargin } from '../../render/render-clip.ts';
 import { RENDER_CAUTION, chooseGain, prepareJob, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
+import { alignRows } from '../format.ts';
 
 const USAGE =
   'coilcue preview --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--channel mix|left|right] [--format s16|s24|f32] [--columns N] [--json]';
@@ -71,8 +72,7 @@ export function formatPreview(s: PreviewSummary): string {
       ? 'silence: the drive does not vary at this gain'
       : `${dB(a.output.samplePeakDbfs)} dBFS peak, ${dB(a.output.rmsDbfs)} dBFS RMS (source ${dB(a.source.samplePeakDbfs)} / ${dB(a.source.rmsDbfs)}; set by the source's ${a.limitedBy})`,
   ]);
-  const w = Math.max(...rows.map(([k]) => k.length));
-  return [`Preview on the coil (${s.scheme} scheme)`, ...rows.map(([k, v]) => `  ${k.padEnd(w)}  ${v}`), s.caution, ''].join('\n');
+  return [`Preview on the coil (${s.scheme} scheme)`, ...alignRows(rows, '  '), s.caution, ''].join('\n');
 }
 
 /** `coilcue preview`: what the coil will make of a clip — the arc sound as a WAV, the modulation in figures. */

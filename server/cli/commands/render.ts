@@ -12,6 +12,7 @@ import { type GainChoice, RENDER_CAUTION, chooseGain, prepareJob, refuseOverwrit
 import { type PreEmphasis, type RenderedModulation, encodeRender, renderGraph, renderModulation } from '../../render/render-clip.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
+import { alignRows } from '../format.ts';
 
 // Registered together with `preview` from one import line in ./index.ts.
 export { previewCommand } from './preview.ts';
@@ -117,8 +118,7 @@ export function formatRender(s: RenderSummary): string {
   }
   rows.push(['before the limiter', `${dB(s.levels.beforeLimiter.samplePeakDbfs)} dBFS sample peak, ${dB(s.levels.beforeLimiter.truePeakDbtp)} dBTP true peak`]);
   rows.push(['render', `${dB(s.levels.render.samplePeakDbfs)} dBFS sample peak, ${dB(s.levels.render.truePeakDbtp)} dBTP true peak (0 dBFS = the rail at its ends)`]);
-  const w = Math.max(...rows.map(([k]) => k.length));
-  const lines = [`Render for the coil (${s.scheme} scheme)`, ...rows.map(([k, v]) => `  ${k.padEnd(w)}  ${v}`), '', 'Closed loop', `  ${s.closedLoop.explanation}`];
+  const lines = [`Render for the coil (${s.scheme} scheme)`, ...alignRows(rows, '  '), '', 'Closed loop', `  ${s.closedLoop.explanation}`];
   const table: string[][] = [['limit', 'planned', 'render', 'allowed', '']];
   for (const x of s.closedLoop.limits) {
     table.push([limitLabel(x), formatLimitValue(x.planned, x.unit), formatLimitValue(x.rendered, x.unit), formatLimitValue(x.allowed, x.unit), x.holds ? 'holds' : 'DOES NOT HOLD']);
