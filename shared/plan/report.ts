@@ -7,7 +7,7 @@
 import type { WelchSpectrum } from '../dsp/welch.ts';
 import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
 import { simulateRail } from '../physics/driver/simulate-rail.ts';
-import type { CoilAtResonance, DeviceTraces, ThermalState } from '../physics/driver/types.ts';
+import type { CoilAtResonance, DeviceTraces, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import { ThermalNetwork } from '../physics/thermal/network.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
 import { powerToDb } from '../units.ts';
@@ -79,6 +79,8 @@ export interface PlanReport {
   overModulationFraction: number;
   overModulationTimeS: number;
   pulses: Evaluation['pulses'];
+  /** Pulse scheme: RF cycles per pulse at the resonant frequency and pulses shorter than the ring-up time. */
+  pulseRf: DriverSimulation['pulse'] | null;
   /** Every limit at the evaluated gain, with its headroom. */
   limits: LimitCheck[];
   budget: BudgetCurve[];
@@ -246,6 +248,7 @@ export function planClipReport(
     overModulationFraction: evaluation.overModulationFraction,
     overModulationTimeS: evaluation.overModulationTimeS,
     pulses: evaluation.pulses,
+    pulseRf: sim.pulse ?? null,
     limits: evaluation.limits,
     budget,
     limiterCeilingDbfs: Number.isFinite(evaluatedGainDb) ? -evaluatedGainDb : 0,

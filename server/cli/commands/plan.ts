@@ -22,8 +22,20 @@ const USAGE =
   '[--channel mix|left|right] [--margin-k K] [--allowed-share S] [--ambient-c C] [--pulse-source zero-crossing|pitch-locked]\n' +
   '       coilcue plan --set <set.json> [--json] [--common-gain] [--ambient-c C] [--margin-k K] [--allowed-share S]';
 
-export async function loadCoil(path: string, cwd: string): Promise<CoilReport> {
-  return analyzeCoil(parseCoilProfile(await readJsonFile(path, cwd, 'coil profile', 'fix the file or start from a demo: coilcue coil --demo desk-lantern --json')));
+/**
+ * Reads and models a coil. With the driver, its figures feed the coil's voltage bound and arc
+ * reach (and so the keep-out distance): supply voltage and full-rail current for the input power,
+ * and for the pulse scheme the longest on-time for the energy bound (a continuous rail has no
+ * per-pulse energy, so only the arc-reach rule applies there).
+ */
+export async function loadCoil(path: string, cwd: string, driver?: DriverProfile): Promise<CoilReport> {
+  const profile = parseCoilProfile(await readJsonFile(path, cwd, 'coil profile', 'fix the file or start from a demo: coilcue coil --demo desk-lantern --json'));
+  if (!driver) return analyzeCoil(profile);
+  return analyzeCoil(profile, {
+    supplyVoltageV: driver.supplyVoltageV,
+    fullRailCurrentA: driver.fullRailCurrentA,
+    ...(driver.scheme === 'pulse' && driver.pulse ? { pulseOnTimeS: driver.pulse.maxOnTimeS } : {}),
+  });
 }
 
 export async function loadDriver(path: string, cwd: string): Promise<DriverProfile> {
@@ -44,6 +56,15 @@ function limitText(l: { limit: string; role: string | null; value: number; allow
   const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
   return `${l.limit}${who}: ${v}`;
 }
+
+/** The coil's voltage bound, arc reach and keep-out distance, for the cautions. */
+export const keepOutFigures = (coil: CoilReport) => ({
+  topVoltageBoundV: coil.voltage.topVoltageBoundV,
+  breakdownGapM: coil.voltage.breakdownGapM,
+  arcReachM: coil.voltage.arcReachM,
+  keepOutM: coil.keepOutM,
+  basis: coil.voltage.basis,
+});
 
 /** The readable answer for one clip. */
 export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
@@ -73,7 +94,7 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
         (b.crossing ? `the clip's demand exceeds the budget for bursts of ${formatEng(b.crossing.lengthS, 's')} (demand ${pct(b.crossing.demand)}, budget ${pct(b.crossing.budget)})` : 'the clip stays within budget at every burst length'),
     );
   }
-  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level where the rail reaches its ends)`);
+  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level where the rail reaches its ends or the on-time its maximum)`);
   if (r.preEmphasis) {
     const p = r.preEmphasis;
     out.push(
@@ -82,7 +103,17 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
         : `pre-emphasis not needed: the envelope corner costs ${p.envelopeLossDb.toFixed(1)} dB`,
     );
   }
+  if (r.pulseRf) {
+    out.push(`RF cycles per pulse at ${formatEng(coil.resonanceHz, 'Hz')}: fewest ${r.pulseRf.rfCyclesMin.toFixed(1)}, mean ${r.pulseRf.rfCyclesMean.toFixed(1)}; ${r.pulseRf.shorterThanRingUp} pulses shorter than the ring-up time ${formatEng(coil.ringUpTauS, 's')}`);
+  }
+  if (coil.keepOutM !== null) {
+    const v = coil.voltage;
+    out.push(
+      `keep-out: at least ${coil.keepOutM.toFixed(2)} m from the top load (${v.topVoltageBoundV !== null ? `top voltage bound ${formatEng(v.topVoltageBoundV, 'V')}, breakdown gap ${formatEng(v.breakdownGapM, 'm')}, ` : ''}arc-reach rule ${formatEng(v.arcReachM, 'm')}, ×${v.safetyFactor}); real arcs can reach farther`,
+    );
+  }
   out.push(r.gainConvention);
+  out.push('Caution: high voltage and RF can burn, injure or kill; follow local codes and licensed practice.');
   return out.join('\n') + '\n';
 }
 
@@ -141,8 +172,8 @@ export const planCommand: Command = {
       const setPath = resolve(io.cwd, values.set);
       const set = parseSetFile(await readJsonFile(values.set, io.cwd, 'set file', 'see the README for the set file format'));
       const base = dirname(setPath);
-      const coil = await loadCoil(set.coil, base);
       const driver = await loadDriver(set.driver, base);
+      const coil = await loadCoil(set.coil, base, driver);
       const settings = settingsFrom(values, driver);
       const items = [];
       for (const it of set.items) {
@@ -159,8 +190,8 @@ export const planCommand: Command = {
       throw new InputError('bad-arguments', `give --clip, --coil and --driver (or --set). Usage: ${USAGE}`);
     }
     const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
-    const coil = await loadCoil(values.coil, io.cwd);
     const driver = await loadDriver(values.driver, io.cwd);
+    const coil = await loadCoil(values.coil, io.cwd, driver);
     const settings = settingsFrom(values, driver);
     const { planClip, analysis } = await loadPlanClip(values.clip, io, driver, channel, pulseSource);
     const { report, evaluation } = planClipReport(planClip, coil, driver, settings, {
@@ -171,7 +202,7 @@ export const planCommand: Command = {
     if (values.trace !== undefined) {
       await writeFileAtomic(resolve(io.cwd, values.trace), new TextEncoder().encode(traceCsv(evaluation.sim, planClip.frames.frameS)));
     }
-    io.out(values.json ? JSON.stringify(report, jsonReplacer, 2) + '\n' : formatPlan(report, coil, driver));
+    io.out(values.json ? JSON.stringify({ ...report, keepOut: keepOutFigures(coil) }, jsonReplacer, 2) + '\n' : formatPlan(report, coil, driver));
     return 0;
   },
 };
