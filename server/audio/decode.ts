@@ -5,7 +5,7 @@
  * allows (WAV data size, FLAC STREAMINFO, Ogg last granule, MP3 frame walk), and again after.
  * The file's own sample rate is kept; nothing is resampled.
  */
-import { open, stat } from 'node:fs/promises';
+import { type FileHandle, open, stat } from 'node:fs/promises';
 import { setImmediate as yieldToEventLoop } from 'node:timers/promises';
 import type { AudioClip } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
@@ -13,7 +13,7 @@ import { probeFlac } from './probe-flac.ts';
 import { probeMp3 } from './probe-mp3.ts';
 import { probeOgg } from './probe-ogg.ts';
 import { skipId3v2, sniffFormat, type SupportedFormat } from './sniff.ts';
-import { parseWavHeader, readWavFrames } from './wav-parse.ts';
+import { type WavHeader, convertWavFrames, parseWavHeader, parseWavHeaderPrefix, readWavFrames } from './wav-parse.ts';
 import { CodecError, decodeInWorker } from './worker-decode.ts';
 
 /** A decoded file: planar float channels at the file's own rate, plus where they came from. */
@@ -42,6 +42,13 @@ export interface DecodeOptions {
   maxDecodedBytes?: number;
   /** Called with a fraction 0…1 as work proceeds (non-decreasing; 1 once, at the end). */
   onProgress?(fraction: number): void;
+  /**
+   * Called as decoded frames become final: frames from…to−1 of every channel, in order, each frame
+   * once (a WAV block by block, other formats all at once at the end). For work that is cheapest
+   * while a block is fresh in the cache, such as writing the modulation mix for the analysis worker
+   * (server/analysis/shared-source.ts). An error it throws ends the decoding.
+   */
+  onFrames?(channels: Float32Array[], from: number, to: number): void;
 }
 
 /** Default longest clip, s (20 min). */
@@ -55,8 +62,12 @@ export const DEFAULT_MAX_DECODED_BYTES = 1.5e9;
 
 /** Frames converted between event-loop turns and progress reports when reading WAV. */
 const WAV_CHUNK_FRAMES = 1 << 20;
+/** Most bytes of one WAV block read from a file (2^18 frames of 16-bit stereo). */
+const WAV_BLOCK_BYTES = 1 << 20;
 /** Bytes per read() when loading a file. */
 const READ_CHUNK_BYTES = 8 << 20;
+/** First bytes read from a file: enough to tell WAV from the rest and, usually, for its whole header. */
+const HEAD_BYTES = 64 << 10;
 
 interface Resolved {
   maxDurationS: number;
@@ -64,6 +75,7 @@ interface Resolved {
   maxDecodedBytes: number;
   timeoutS: number;
   deadlineMs: number;
+  onFrames(channels: Float32Array[], from: number, to: number): void;
   progress(f: number): void;
 }
 
@@ -82,6 +94,7 @@ function resolveOptions(opts: DecodeOptions | undefined): Resolved {
     maxDecodedBytes: pos(o.maxDecodedBytes, 'maxDecodedBytes', DEFAULT_MAX_DECODED_BYTES),
     timeoutS,
     deadlineMs: Date.now() + timeoutS * 1000,
+    onFrames: o.onFrames ? (c, from, to) => o.onFrames!(c, from, to) : () => undefined,
     progress(f) {
       const c = Math.min(1, Math.max(last, f));
       if (c === last && c !== 0) return;
@@ -129,6 +142,10 @@ function timedOut(timeoutS: number): InputError {
  * decoding (`too-long`). File-system failures become InputError `not-found` or `unreadable`; bad content
  * the codes listed at {@link decodeAudioBytes}. Units: seconds, bytes, hertz.
  *
+ * Memory: a WAV file is never held whole: its header is read first, then the data chunk in blocks of
+ * at most 1 MiB straight into the float channels, so the peak is the decoded clip plus two blocks.
+ * Compressed files are read whole and handed to the decoding worker.
+ *
  * @example const clip = await decodeAudioFile('song.flac', { maxDurationS: 600 }); clip.sampleRate // 44100
  */
 export async function decodeAudioFile(path: string, opts?: DecodeOptions): Promise<DecodedClip> {
@@ -147,26 +164,129 @@ export async function decodeAudioFile(path: string, opts?: DecodeOptions): Promi
   if (size > r.maxBytes) {
     throw new InputError('too-large', `${path} is ${mb(size)}, over the ${mb(r.maxBytes)} limit; cut a shorter excerpt or use a compressed format (FLAC, Ogg Vorbis, MP3)`);
   }
-  const bytes = new Uint8Array(size);
+  let fh: FileHandle;
+  try {
+    fh = await open(path, 'r');
+  } catch (e) {
+    throw fsError(e, path);
+  }
+  try {
+    const head = await readAt(fh, new Uint8Array(Math.min(size, HEAD_BYTES)), 0, path);
+    if (isRiffWave(head)) {
+      // A RIFF file with WAVE at byte 8: sniffFormat gives 'wav' from these 12 bytes alone.
+      const clip = await decodeWavFile(fh, head, size, r, path);
+      r.progress(1);
+      return clip;
+    }
+    const bytes = head.length === size ? head : await readWhole(fh, head, size, r, path);
+    return await decodeCore(bytes, r, true, 0.25);
+  } finally {
+    await fh.close().catch(() => undefined);
+  }
+}
+
+/** True when `b` starts like a file sniffFormat calls 'wav': a RIFF-family magic and WAVE at byte 8. */
+function isRiffWave(b: Uint8Array): boolean {
+  if (b.length < 12) return false;
+  const id = (o: number) => String.fromCharCode(b[o], b[o + 1], b[o + 2], b[o + 3]);
+  return ['RIFF', 'RIFX', 'RF64', 'BW64'].includes(id(0)) && id(8) === 'WAVE' && sniffFormat(b) === 'wav';
+}
+
+/** Reads into `buf` from file offset `pos` until it is full or the file ends; returns the bytes read. */
+async function readAt(fh: FileHandle, buf: Uint8Array, pos: number, path: string): Promise<Uint8Array> {
   let got = 0;
   try {
-    const fh = await open(path, 'r');
-    try {
-      while (got < size) {
-        const { bytesRead } = await fh.read(bytes, got, Math.min(READ_CHUNK_BYTES, size - got), got);
-        if (bytesRead === 0) break; // the file shrank while we read it
-        got += bytesRead;
-        r.progress(0.25 * (got / size));
-        if (Date.now() > r.deadlineMs) throw timedOut(r.timeoutS);
-      }
-    } finally {
-      await fh.close();
+    while (got < buf.length) {
+      const { bytesRead } = await fh.read(buf, got, buf.length - got, pos + got);
+      if (bytesRead === 0) break; // the file shrank while we read it
+      got += bytesRead;
     }
   } catch (e) {
     throw fsError(e, path);
   }
-  return decodeCore(got === size ? bytes : bytes.subarray(0, got), r, true, 0.25);
+  return got === buf.length ? buf : buf.subarray(0, got);
 }
+
+/** The whole file, `head` (its first bytes) included, read in 8 MiB pieces; progress 0…0.25. */
+async function readWhole(fh: FileHandle, head: Uint8Array, size: number, r: Resolved, path: string): Promise<Uint8Array> {
+  const bytes = new Uint8Array(size);
+  bytes.set(head);
+  let got = head.length;
+  if (got < size && head.length === Math.min(size, HEAD_BYTES)) {
+    // (a head shorter than asked for means the file shrank: keep what there is)
+    while (got < size) {
+      const part = await readAt(fh, bytes.subarray(got, Math.min(size, got + READ_CHUNK_BYTES)), got, path);
+      got += part.length;
+      r.progress(0.25 * (got / size));
+      if (part.length === 0 || Date.now() > r.deadlineMs) break;
+    }
+    if (Date.now() > r.deadlineMs) throw timedOut(r.timeoutS);
+  }
+  return got === size ? bytes : bytes.subarray(0, got);
+}
+
+/**
+ * A WAV file read in pieces: the header from a prefix (longer prefixes read until it is complete),
+ * the limits checked from it, then the data chunk block by block (the next block read while this one
+ * is converted) into the channels. Errors and messages are those of decodeWav on the whole file.
+ */
+async function decodeWavFile(fh: FileHandle, head: Uint8Array, size: number, r: Resolved, path: string): Promise<DecodedClip> {
+  let fileBytes = head.length < Math.min(size, HEAD_BYTES) ? head.length : size; // a short read: the file shrank
+  let prefix = head;
+  let h: WavHeader | null = parseWavHeaderPrefix(prefix, fileBytes);
+  while (h === null) {
+    const want = Math.min(fileBytes, prefix.length * 8);
+    prefix = await readAt(fh, new Uint8Array(want), 0, path);
+    if (prefix.length < want) fileBytes = prefix.length;
+    h = parseWavHeaderPrefix(prefix, fileBytes);
+  }
+  prefix = new Uint8Array(0); // the header's bytes are no longer needed
+  checkWavHeader(h, fileBytes, r);
+  r.progress(0.01);
+  const n = h.framesPresent;
+  const channels = Array.from({ length: h.channelCount }, () => new Float32Array(n));
+  const blockFrames = Math.max(1, Math.min(WAV_CHUNK_FRAMES, Math.floor(WAV_BLOCK_BYTES / h.blockAlign)));
+  const bufBytes = Math.min(n, blockFrames) * h.blockAlign;
+  const bufs = [new Uint8Array(bufBytes), new Uint8Array(bufBytes)];
+  const readBlock = (from: number, buf: Uint8Array) =>
+    readAt(fh, buf.subarray(0, (Math.min(n, from + blockFrames) - from) * h.blockAlign), h.dataOffset + from * h.blockAlign, path);
+  let pending = readBlock(0, bufs[0]);
+  for (let from = 0, k = 0; from < n; from += blockFrames, k++) {
+    const to = Math.min(n, from + blockFrames);
+    const block = await pending;
+    if (block.length < (to - from) * h.blockAlign) {
+      throw new InputError('truncated', `the WAV file ended after ${humanDuration((from + Math.floor(block.length / h.blockAlign)) / h.sampleRate)} of audio while being read (it was cut short or changed meanwhile); re-export or re-download it`);
+    }
+    if (to < n) pending = readBlock(to, bufs[(k + 1) & 1]); // read ahead while converting this block
+    try {
+      const bad = convertWavFrames(block, h, channels, from, to);
+      if (bad >= 0) throw nonFinite(bad, h.sampleRate);
+      r.onFrames(channels, from, to);
+      r.progress(0.01 + 0.98 * (to / n));
+      if (to < n && Date.now() > r.deadlineMs) throw timedOut(r.timeoutS);
+    } catch (e) {
+      if (to < n) await pending.catch(() => undefined); // let the read-ahead finish before the handle closes
+      throw e;
+    }
+  }
+  return { sampleRate: h.sampleRate, channels, format: 'wav', sourceBytes: fileBytes, durationS: n / h.sampleRate };
+}
+
+/** The header checks of a WAV, before any sample is read: duration, decoded size, truncation, emptiness. */
+function checkWavHeader(h: WavHeader, fileBytes: number, r: Resolved): void {
+  if (h.durationS > r.maxDurationS) throw tooLong(h.durationS, r.maxDurationS);
+  checkDecodedSize(h.frameCount, h.channelCount, r);
+  if (h.truncated) {
+    throw new InputError(
+      'truncated',
+      `the WAV file is cut short: its header promises ${h.dataBytes} bytes of audio (${humanDuration(h.durationS)}) but only ${fileBytes - h.dataOffset} are present; re-export or re-download it`,
+    );
+  }
+  if (h.framesPresent === 0) throw new InputError('empty', 'the WAV file holds no audio samples (its data chunk is empty); give a file that holds audio');
+}
+
+const nonFinite = (frame: number, sampleRate: number): InputError =>
+  new InputError('corrupt', `the float WAV file holds a sample that is not a number (NaN or infinity) at ${(frame / sampleRate).toFixed(3)} s; the file is damaged`);
 
 /**
  * Decodes an encoded audio file held in memory; `bytes` is not modified or kept.
@@ -197,22 +317,13 @@ async function decodeCore(bytes: Uint8Array, r: Resolved, owned: boolean, p0: nu
 
 async function decodeWav(bytes: Uint8Array, r: Resolved, p0: number): Promise<DecodedClip> {
   const h = parseWavHeader(bytes);
-  if (h.durationS > r.maxDurationS) throw tooLong(h.durationS, r.maxDurationS);
-  checkDecodedSize(h.frameCount, h.channelCount, r);
-  if (h.truncated) {
-    throw new InputError(
-      'truncated',
-      `the WAV file is cut short: its header promises ${h.dataBytes} bytes of audio (${humanDuration(h.durationS)}) but only ${bytes.length - h.dataOffset} are present; re-export or re-download it`,
-    );
-  }
-  if (h.framesPresent === 0) throw new InputError('empty', 'the WAV file holds no audio samples (its data chunk is empty); give a file that holds audio');
+  checkWavHeader(h, bytes.length, r);
   const channels = Array.from({ length: h.channelCount }, () => new Float32Array(h.framesPresent));
   for (let from = 0; from < h.framesPresent; from += WAV_CHUNK_FRAMES) {
     const to = Math.min(h.framesPresent, from + WAV_CHUNK_FRAMES);
     const bad = readWavFrames(bytes, h, channels, from, to);
-    if (bad >= 0) {
-      throw new InputError('corrupt', `the float WAV file holds a sample that is not a number (NaN or infinity) at ${(bad / h.sampleRate).toFixed(3)} s; the file is damaged`);
-    }
+    if (bad >= 0) throw nonFinite(bad, h.sampleRate);
+    r.onFrames(channels, from, to);
     r.progress(p0 + (1 - p0) * (to / h.framesPresent));
     if (to < h.framesPresent) {
       if (Date.now() > r.deadlineMs) throw timedOut(r.timeoutS);
@@ -306,6 +417,7 @@ async function decodeCompressed(
   const durationS = frames / decoded.sampleRate;
   if (durationS > r.maxDurationS) throw tooLong(durationS, r.maxDurationS);
   checkDecodedSize(frames, channels.length, r);
+  r.onFrames(channels, 0, frames);
   return { sampleRate: decoded.sampleRate, channels, format, sourceBytes, durationS };
 }
 

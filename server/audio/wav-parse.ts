@@ -84,8 +84,32 @@ const CONVERT_HINT = 'convert it to 16- or 24-bit PCM WAV, FLAC, Ogg Vorbis or M
  * @example parseWavHeader(bytes).durationS // 3.0 for 132300 frames at 44100 Hz
  */
 export function parseWavHeader(bytes: Uint8Array): WavHeader {
-  const n = bytes.length;
+  return walkHeader(bytes, bytes.length) as WavHeader;
+}
+
+/**
+ * {@link parseWavHeader} from the first bytes of a file of `fileBytes` bytes, for reading a file in
+ * pieces: returns null when `prefix` ends before the header does (before the `fmt ` chunk's body or
+ * the `data` chunk's 8-byte header); read a longer prefix and call again. Otherwise the same header,
+ * the same checks and the same errors as parseWavHeader on the whole file (offsets and sizes refer
+ * to the whole file; `truncated` and `framesPresent` compare the data chunk with `fileBytes`).
+ *
+ * @param prefix the file's first bytes (any length ≤ fileBytes)
+ * @param fileBytes length of the whole file, bytes
+ * @example parseWavHeaderPrefix(first64KiB, stat.size)?.dataOffset // 44 for a plain PCM file
+ */
+export function parseWavHeaderPrefix(prefix: Uint8Array, fileBytes: number): WavHeader | null {
+  if (!(Number.isInteger(fileBytes) && fileBytes >= prefix.length)) {
+    throw new RangeError(`parseWavHeaderPrefix: fileBytes must be an integer ≥ prefix.length (${prefix.length}), got ${fileBytes}`);
+  }
+  return walkHeader(prefix, fileBytes);
+}
+
+/** The chunk walk of parseWavHeader over a prefix of a file of n bytes; null when the prefix is too short. */
+function walkHeader(bytes: Uint8Array, n: number): WavHeader | null {
+  const have = bytes.length;
   if (n < 12) throw new InputError('truncated', `the WAV file is cut short: only ${n} bytes, not even a complete RIFF header; re-export or re-download it`);
+  if (have < 12) return null;
   const magic = id4(bytes, 0);
   if (magic === 'RIFX' || magic === 'RF64' || magic === 'BW64') {
     throw new InputError('unsupported-codec', `this is a ${magic} WAV variant, which coilcue does not read; ${CONVERT_HINT}`);
@@ -97,12 +121,14 @@ export function parseWavHeader(bytes: Uint8Array): WavHeader {
   let pos = 12;
   let fmt: Omit<WavHeader, 'dataOffset' | 'dataBytes' | 'frameCount' | 'durationS' | 'truncated' | 'framesPresent'> | null = null;
   while (pos + 8 <= n) {
+    if (pos + 8 > have) return null;
     const id = id4(bytes, pos);
     const size = dv.getUint32(pos + 4, true);
     const body = pos + 8;
     if (id === 'fmt ') {
       if (size < 16) throw new InputError('corrupt', `the WAV fmt chunk is ${size} bytes, less than the 16 the format requires; the file is damaged`);
       if (body + size > n) break;
+      if (body + size > have) return null;
       fmt = parseFmt(bytes, dv, body, size);
     } else if (id === 'data') {
       if (!fmt) throw new InputError('corrupt', 'the WAV data chunk comes before its fmt chunk, so its samples cannot be interpreted; re-export the file');
@@ -187,25 +213,42 @@ function parseFmt(bytes: Uint8Array, dv: DataView, o: number, size: number) {
  * (64-bit rounded to float32); values beyond ±1 are kept (float WAV may exceed full scale).
  * Returns the frame index of the first non-finite float sample (NaN, ±∞), or −1 when there is none.
  *
+ * @param bytes the whole file (the data chunk at h.dataOffset)
  * @example readWavFrames(bytes, h, out, 0, h.framesPresent)
  */
 export function readWavFrames(bytes: Uint8Array, h: WavHeader, out: Float32Array[], from: number, to: number): number {
+  if (to <= from) return -1;
+  const start = h.dataOffset + from * h.blockAlign;
+  return convertWavFrames(bytes.subarray(start, start + (to - from) * h.blockAlign), h, out, from, to);
+}
+
+/**
+ * {@link readWavFrames} from a piece of the data chunk read on its own: `block` starts with the
+ * first byte of frame `from` and holds at least (to − from)·blockAlign bytes. Same scaling, same
+ * result, same return value (frame index of the first non-finite float sample, or −1).
+ *
+ * @example convertWavFrames(blockRead, h, out, 1048576, 2097152) // the second 2^20 frames
+ */
+export function convertWavFrames(block: Uint8Array, h: WavHeader, out: Float32Array[], from: number, to: number): number {
   const nc = h.channelCount;
   const cb = h.containerBytes;
-  const base = bytes.byteOffset + h.dataOffset + from * h.blockAlign;
+  const base = block.byteOffset;
   const frames = to - from;
   if (frames <= 0) return -1;
+  if (block.length < frames * h.blockAlign) {
+    throw new RangeError(`convertWavFrames: block holds ${block.length} bytes, ${frames} frames need ${frames * h.blockAlign}`);
+  }
   // Little-endian host fast path: a typed-array view when the data is aligned, else DataView.
   const aligned = base % cb === 0 && LITTLE_ENDIAN;
   if (h.encoding === 'float') {
     if (aligned) {
-      const src = cb === 4 ? new Float32Array(bytes.buffer, base, frames * nc) : new Float64Array(bytes.buffer, base, frames * nc);
+      const src = cb === 4 ? new Float32Array(block.buffer, base, frames * nc) : new Float64Array(block.buffer, base, frames * nc);
       for (let c = 0; c < nc; c++) {
         const x = out[c];
         for (let i = 0, k = c; i < frames; i++, k += nc) x[from + i] = src[k];
       }
     } else {
-      const dv = new DataView(bytes.buffer, base, frames * h.blockAlign);
+      const dv = new DataView(block.buffer, base, frames * h.blockAlign);
       for (let c = 0; c < nc; c++) {
         const x = out[c];
         for (let i = 0, p = c * cb; i < frames; i++, p += h.blockAlign) x[from + i] = cb === 4 ? dv.getFloat32(p, true) : dv.getFloat64(p, true);
@@ -220,18 +263,28 @@ export function readWavFrames(bytes: Uint8Array, h: WavHeader, out: Float32Array
   if (cb === 1) {
     for (let c = 0; c < nc; c++) {
       const x = out[c];
-      for (let i = 0, p = base - bytes.byteOffset + c; i < frames; i++, p += nc) x[from + i] = (bytes[p] - 128) * (1 / 128);
+      for (let i = 0, p = c; i < frames; i++, p += nc) x[from + i] = (block[p] - 128) * (1 / 128);
     }
   } else if (cb === 2) {
     const s = 1 / 32768;
     if (aligned) {
-      const src = new Int16Array(bytes.buffer, base, frames * nc);
-      for (let c = 0; c < nc; c++) {
-        const x = out[c];
-        for (let i = 0, k = c; i < frames; i++, k += nc) x[from + i] = src[k] * s;
+      const src = new Int16Array(block.buffer, base, frames * nc);
+      if (nc === 2) {
+        // the common case, both channels in one pass over the block
+        const x0 = out[0];
+        const x1 = out[1];
+        for (let i = 0, k = 0; i < frames; i++, k += 2) {
+          x0[from + i] = src[k] * s;
+          x1[from + i] = src[k + 1] * s;
+        }
+      } else {
+        for (let c = 0; c < nc; c++) {
+          const x = out[c];
+          for (let i = 0, k = c; i < frames; i++, k += nc) x[from + i] = src[k] * s;
+        }
       }
     } else {
-      const dv = new DataView(bytes.buffer, base, frames * h.blockAlign);
+      const dv = new DataView(block.buffer, base, frames * h.blockAlign);
       for (let c = 0; c < nc; c++) {
         const x = out[c];
         for (let i = 0, p = c * 2; i < frames; i++, p += h.blockAlign) x[from + i] = dv.getInt16(p, true) * s;
@@ -241,20 +294,20 @@ export function readWavFrames(bytes: Uint8Array, h: WavHeader, out: Float32Array
     const s = 1 / 8388608;
     for (let c = 0; c < nc; c++) {
       const x = out[c];
-      for (let i = 0, p = base - bytes.byteOffset + c * 3; i < frames; i++, p += h.blockAlign) {
-        x[from + i] = (((bytes[p] | (bytes[p + 1] << 8) | (bytes[p + 2] << 16)) << 8) >> 8) * s;
+      for (let i = 0, p = c * 3; i < frames; i++, p += h.blockAlign) {
+        x[from + i] = (((block[p] | (block[p + 1] << 8) | (block[p + 2] << 16)) << 8) >> 8) * s;
       }
     }
   } else {
     const s = 1 / 2147483648;
     if (aligned) {
-      const src = new Int32Array(bytes.buffer, base, frames * nc);
+      const src = new Int32Array(block.buffer, base, frames * nc);
       for (let c = 0; c < nc; c++) {
         const x = out[c];
         for (let i = 0, k = c; i < frames; i++, k += nc) x[from + i] = src[k] * s;
       }
     } else {
-      const dv = new DataView(bytes.buffer, base, frames * h.blockAlign);
+      const dv = new DataView(block.buffer, base, frames * h.blockAlign);
       for (let c = 0; c < nc; c++) {
         const x = out[c];
         for (let i = 0, p = c * 4; i < frames; i++, p += h.blockAlign) x[from + i] = dv.getInt32(p, true) * s;

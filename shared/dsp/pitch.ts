@@ -31,6 +31,11 @@
  *    original signal: d at the integer full-rate lags around the estimate, walked to the lowest, and the
  *    parabola through it and its neighbours, over max(2 periods, 5 ms) of the window.
  *
+ * Memory: the decimated signal and its running sums of squares are made as the frames read them and
+ * kept only for a window of a few frames (DecimatedStream, RunningPrefixSums), each value computed
+ * exactly as in one pass over the whole signal; a track of any length costs a few hundred kB beyond
+ * its output, where whole arrays took 5 bytes per input sample (66 MB for 5 minutes at 44.1 kHz).
+ *
  * Because a period of only 5.5–40 analysis samples is coarse, the threshold test in step 4 uses the
  * interpolated bottom of each dip (the vertex of the parabola through d′ at the dip and its
  * neighbours) as well as the sampled value; with sampled values alone a dip falling between samples
@@ -143,6 +148,11 @@ export function decimationFilter(q: number, transition = 0.6, rejectionDb = 40):
  * has to reject what would fold onto that final band, so the early stages are short); any other q
  * is one {@link decimationFilter} stage.
  *
+ * The cascade runs block by block (8192 output samples at a time, each stage computing just the
+ * stretch of its output the next stage reads), so no intermediate signal is held whole: the memory
+ * is the output plus a few small buffers. Every stage output is rounded to float32, as if each
+ * stage had produced a whole float32 signal.
+ *
  * @param signal input samples
  * @param q integer factor ≥ 1 (1 returns a copy)
  * @returns ⌈n/q⌉ samples (float32, like audio; the stages accumulate in float64)
@@ -151,22 +161,25 @@ export function decimationFilter(q: number, transition = 0.6, rejectionDb = 40):
 export function decimate(signal: ArrayLike<number>, q: number): Float32Array {
   if (!Number.isInteger(q) || q < 1) throw new RangeError(`decimate: q must be an integer ≥ 1, got ${q}`);
   if (q === 1) return Float32Array.from(signal);
-  if ((q & (q - 1)) !== 0) return firDecimate(signal, q, decimationFilter(q));
-  const stages = Math.round(Math.log2(q));
-  let x: ArrayLike<number> = signal;
-  for (let i = 1; i <= stages; i++) {
-    // stage i outputs fs/2^i; keep 0…0.2·fs/q alias-free: transition = 1 − 2·(0.2·fs/q)/(fs/2^i)
-    x = firDecimate(x, 2, decimationFilter(2, 1 - 0.4 * 2 ** (i - stages)));
-  }
-  return x as Float32Array;
+  const d = new Decimator(signal, q);
+  const out = new Float32Array(d.length);
+  d.run(0, d.length, out, 0);
+  return out;
 }
 
-/** y[m] = Σₖ h[k]·x[m·q + k − (K−1)/2] for symmetric odd-length h, skipping zero taps. */
-function firDecimate(signal: ArrayLike<number>, q: number, h: Float64Array): Float32Array {
-  const n = signal.length;
-  const out = new Float32Array(Math.ceil(n / q));
+/** A symmetric odd-length FIR for 2:1 or q:1 decimation with its zero taps dropped. */
+interface FirStage {
+  q: number;
+  /** (taps − 1)/2: how far a tap reaches either side of the centre. */
+  half: number;
+  centre: number;
+  /** Offsets o > 0 of the non-zero tap pairs h[half ± o], and their weights. */
+  offsets: Int32Array;
+  weights: Float64Array;
+}
+
+function firStage(q: number, h: Float64Array): FirStage {
   const half = (h.length - 1) / 2;
-  const centre = h[half];
   const offsets: number[] = [];
   const weights: number[] = [];
   for (let o = 1; o <= half; o++) {
@@ -175,42 +188,178 @@ function firDecimate(signal: ArrayLike<number>, q: number, h: Float64Array): Flo
       weights.push(h[half + o]);
     }
   }
+  return { q, half, centre: h[half], offsets: Int32Array.from(offsets), weights: Float64Array.from(weights) };
+}
+
+/**
+ * Outputs m0…m1−1 of one FIR decimation stage into out[o0…]: y[m] = centre·x[m·q] +
+ * Σⱼ wⱼ·(x[m·q − oⱼ] + x[m·q + oⱼ]), summed in that order, where x is the stage input of length
+ * nIn, given by `src` from input index srcLo on (src[i − srcLo]); input samples outside 0…nIn−1
+ * count as 0. `src` must cover every in-range index the outputs reach.
+ */
+function firRange(
+  src: ArrayLike<number>,
+  srcLo: number,
+  nIn: number,
+  st: FirStage,
+  m0: number,
+  m1: number,
+  out: Float32Array,
+  o0: number,
+): void {
+  const { q, half, centre, offsets, weights } = st;
   const pairs = offsets.length;
-  // interior outputs m0…m1−1 have every tap inside the signal
-  const m0 = Math.min(out.length, Math.ceil(half / q));
-  const m1 = Math.max(m0, Math.min(out.length, Math.floor((n - 1 - half) / q) + 1));
+  // interior outputs a…b−1 have every tap inside the input
+  const a = Math.min(m1, Math.max(m0, Math.ceil(half / q)));
+  const b = Math.max(a, Math.min(m1, Math.floor((nIn - 1 - half) / q) + 1));
   if (pairs === 2) {
     // the half-band stages: two pairs of taps, unrolled
-    const [o1, o2] = offsets;
-    const [w1, w2] = weights;
-    for (let m = m0; m < m1; m++) {
-      const c = m * q;
-      out[m] = centre * signal[c] + w1 * (signal[c - o1] + signal[c + o1]) + w2 * (signal[c - o2] + signal[c + o2]);
+    const o1 = offsets[0];
+    const o2 = offsets[1];
+    const w1 = weights[0];
+    const w2 = weights[1];
+    for (let m = a; m < b; m++) {
+      const c = m * q - srcLo;
+      out[o0 + m - m0] = centre * src[c] + w1 * (src[c - o1] + src[c + o1]) + w2 * (src[c - o2] + src[c + o2]);
     }
   } else {
-    const off = Int32Array.from(offsets);
-    const wt = Float64Array.from(weights);
-    for (let m = m0; m < m1; m++) {
-      const c = m * q;
-      let acc = centre * signal[c];
-      for (let j = 0; j < pairs; j++) acc += wt[j] * (signal[c - off[j]] + signal[c + off[j]]);
-      out[m] = acc;
+    for (let m = a; m < b; m++) {
+      const c = m * q - srcLo;
+      let acc = centre * src[c];
+      for (let j = 0; j < pairs; j++) acc += weights[j] * (src[c - offsets[j]] + src[c + offsets[j]]);
+      out[o0 + m - m0] = acc;
     }
   }
-  // the ends, where taps reach outside the signal (those samples count as 0)
+  // the ends, where taps reach outside the input (those samples count as 0)
   const edge = (m: number) => {
     const c = m * q;
-    let acc = centre * signal[c];
+    let acc = centre * src[c - srcLo];
     for (let j = 0; j < pairs; j++) {
-      const a = c - offsets[j];
-      const b = c + offsets[j];
-      acc += weights[j] * ((a >= 0 ? signal[a] : 0) + (b < n ? signal[b] : 0));
+      const l = c - offsets[j];
+      const r = c + offsets[j];
+      acc += weights[j] * ((l >= 0 ? src[l - srcLo] : 0) + (r < nIn ? src[r - srcLo] : 0));
     }
-    out[m] = acc;
+    out[o0 + m - m0] = acc;
   };
-  for (let m = 0; m < m0; m++) edge(m);
-  for (let m = m1; m < out.length; m++) edge(m);
-  return out;
+  for (let m = m0; m < a; m++) edge(m);
+  for (let m = b; m < m1; m++) edge(m);
+}
+
+/** Output samples per block of {@link Decimator.run}. */
+const CASCADE_BLOCK = 8192;
+
+/**
+ * The decimation of {@link decimate} as a cascade of FIR stages run block by block: for each block
+ * of final outputs, the input range every stage needs is worked out backwards (outputs m0…m1−1 of a
+ * stage read its input from m0·q − half to (m1 − 1)·q + half), then the stages run forwards over just
+ * those ranges into small float32 buffers. Same arithmetic, and so the same values, as running each
+ * stage over the whole signal, for any split of the outputs into calls of `run`.
+ */
+class Decimator {
+  /** Output length ⌈n/q⌉. */
+  readonly length: number;
+  private readonly stages: FirStage[] = [];
+  /** Length of the signal after each stage, the input's first. */
+  private readonly ns: number[];
+  private readonly bufs: Float32Array[] = [];
+  private readonly lo: number[];
+  private readonly hi: number[];
+
+  constructor(
+    private readonly signal: ArrayLike<number>,
+    q: number,
+  ) {
+    if (q > 1 && (q & (q - 1)) === 0) {
+      const count = Math.round(Math.log2(q));
+      for (let i = 1; i <= count; i++) {
+        // stage i outputs fs/2^i; keep 0…0.2·fs/q alias-free: transition = 1 − 2·(0.2·fs/q)/(fs/2^i)
+        this.stages.push(firStage(2, decimationFilter(2, 1 - 0.4 * 2 ** (i - count))));
+      }
+    } else if (q > 1) {
+      this.stages.push(firStage(q, decimationFilter(q)));
+    }
+    this.ns = [signal.length];
+    for (const st of this.stages) this.ns.push(Math.ceil(this.ns[this.ns.length - 1] / st.q));
+    this.length = this.ns[this.stages.length];
+    this.lo = new Array<number>(this.stages.length + 1);
+    this.hi = new Array<number>(this.stages.length + 1);
+  }
+
+  /** Final outputs m0…m1−1 (0 ≤ m0 ≤ m1 ≤ length) into out[o0…]. */
+  run(m0: number, m1: number, out: Float32Array, o0: number): void {
+    const { stages, ns, lo, hi, bufs } = this;
+    const last = stages.length;
+    if (last === 0) {
+      for (let m = m0; m < m1; m++) out[o0 + m - m0] = this.signal[m];
+      return;
+    }
+    for (let b0 = m0; b0 < m1; b0 += CASCADE_BLOCK) {
+      lo[last] = b0;
+      hi[last] = Math.min(m1, b0 + CASCADE_BLOCK);
+      for (let s = last; s >= 1; s--) {
+        const st = stages[s - 1];
+        lo[s - 1] = Math.max(0, lo[s] * st.q - st.half);
+        hi[s - 1] = Math.min(ns[s - 1], (hi[s] - 1) * st.q + st.half + 1);
+      }
+      let src: ArrayLike<number> = this.signal;
+      for (let s = 1; s <= last; s++) {
+        const len = hi[s] - lo[s];
+        let dst: Float32Array = out;
+        let d0 = o0 + lo[s] - m0;
+        if (s < last) {
+          if (!bufs[s] || bufs[s].length < len) bufs[s] = new Float32Array(Math.max(len, 2 * CASCADE_BLOCK));
+          dst = bufs[s];
+          d0 = 0;
+        }
+        firRange(src, s === 1 ? 0 : lo[s - 1], ns[s - 1], stages[s - 1], lo[s], hi[s], dst, d0);
+        src = dst;
+      }
+    }
+  }
+}
+
+/**
+ * The decimated signal made as it is read: `view(from, to)` returns samples from…to−1 as one
+ * contiguous float32 view (valid until the next call), computing them when first asked for. Reads
+ * must move forward: only the last `capacity` samples are kept, so memory is a window, not the
+ * whole decimated signal. A view reaching back before what is kept is a programming error (RangeError).
+ */
+class DecimatedStream {
+  readonly length: number;
+  private readonly buf: Float32Array;
+  /** Samples start…end−1 are in buf[0…end−start−1]. */
+  private start = 0;
+  private end = 0;
+
+  constructor(
+    private readonly dec: Decimator,
+    capacity: number,
+  ) {
+    this.length = dec.length;
+    this.buf = new Float32Array(Math.min(dec.length, capacity + CASCADE_BLOCK));
+  }
+
+  view(from: number, to: number): Float32Array {
+    if (from < this.start || to > this.length || from > to) {
+      throw new RangeError(`DecimatedStream.view: ${from}…${to} outside ${this.start}…${this.length}`);
+    }
+    if (to > this.end) {
+      let want = Math.min(this.length, Math.max(to, this.end + CASCADE_BLOCK));
+      const cap = this.buf.length;
+      if (want - this.start > cap) {
+        // slide down, keeping as much history before `from` as fits (the other reader trails behind)
+        const keep = Math.min(from, want - cap);
+        if (keep < this.end) this.buf.copyWithin(0, keep - this.start, this.end - this.start);
+        this.start = keep;
+        this.end = Math.max(this.end, keep);
+        want = Math.min(want, keep + cap);
+        if (want < to) throw new RangeError(`DecimatedStream.view: ${to - from} samples do not fit in ${cap}`);
+      }
+      this.dec.run(this.end, want, this.buf, this.end - this.start);
+      this.end = want;
+    }
+    return this.buf.subarray(from - this.start, to - this.start);
+  }
 }
 
 /**
@@ -255,8 +404,8 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
 
   const q = Math.max(1, Math.floor(sampleRate / (MIN_PERIOD_SAMPLES * maxHz)));
   const fsA = sampleRate / q;
-  const x = decimate(signal, q);
-  const n = x.length;
+  const dec = new Decimator(signal, q);
+  const n = dec.length;
 
   const tauMin = Math.max(2, Math.floor(fsA / maxHz));
   const tauMax = Math.ceil(fsA / minHz);
@@ -270,8 +419,10 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
   const w = blocksPerWindow * block;
   const frames = n >= w + lags ? Math.floor((n - w - lags) / hop) + 1 : 0;
 
-  const cumSq = new Float64Array(n + 1);
-  for (let i = 0; i < n; i++) cumSq[i + 1] = cumSq[i] + x[i] * x[i];
+  // The decimated signal is read as it is made: the correlator reads up to ahead + 3 blocks past
+  // the window it correlates, the running sums from the window's start; keep both reaches.
+  const x = new DecimatedStream(dec, 2 * (w + lags + hop) + (Math.ceil(lags / block) + 4) * block);
+  const prefix = new RunningPrefixSums(x, 4 * (w + lags + hop));
   const correlator = new BlockCorrelator(x, block, blocksPerWindow, lags);
   const corr = new Float64Array(correlator.size);
   const d = new Float64Array(lags);
@@ -290,12 +441,13 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
     const f = first / blocksPerHop;
     const t0 = f * hop;
     timesS[f] = (t0 + (w + tauMax) / 2) / fsA;
-    const e0 = cumSq[t0 + w] - cumSq[t0];
+    const cumSq = prefix.window(t0, w + lags); // cumSq[j] = Σ_{i<t0+j} x[i]²
+    const e0 = cumSq[w] - cumSq[0];
     if (e0 <= SILENT_MEAN_SQUARE * w) continue;
 
     // steps 2–4, lag by lag up to the first qualifying dip
     correlator.correlate(corr);
-    const found = searchDips(corr, cumSq, t0, w, e0, d, dn, tauMin, tauMax, threshold);
+    const found = searchDips(corr, cumSq, 0, w, e0, d, dn, tauMin, tauMax, threshold);
     if (found.tau < 0) {
       aperiodicity[f] = found.lowest;
       continue;
@@ -327,6 +479,48 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
 }
 
 /**
+ * The running sums of squares P[i] = Σ_{j<i} x[j]² (P[0] = 0), each computed from the one before as
+ * P[i] = P[i−1] + x[i−1]² (so the values are those of one pass over the whole signal), kept only
+ * for a window that moves forward: `window(t0, len)` gives P[t0 … t0+len−1]. Memory is one window,
+ * not n + 1 float64 values.
+ */
+class RunningPrefixSums {
+  private readonly buf: Float64Array;
+  /** Index i of buf[0], and how many P values from there are filled in. */
+  private start = 0;
+  private filled = 1;
+
+  constructor(
+    private readonly x: DecimatedStream,
+    capacity: number,
+  ) {
+    this.buf = new Float64Array(Math.max(2, capacity));
+  }
+
+  /** P[t0 … t0+len−1] as a view (valid until the next call); t0 ≥ the previous t0, len ≤ capacity, t0 + len − 1 ≤ n. */
+  window(t0: number, len: number): Float64Array {
+    const buf = this.buf;
+    const end = t0 + len;
+    if (this.start + this.filled >= end) return buf.subarray(t0 - this.start, end - this.start);
+    const base = this.start + this.filled - 1; // first sample read
+    const x = this.x.view(base, end - 1);
+    while (this.start + this.filled < end) {
+      if (this.filled === buf.length) {
+        // full: slide down, keeping the values from t0 on (at least the last one, to continue the sum)
+        const from = Math.min(t0 - this.start, this.filled - 1);
+        buf.copyWithin(0, from, this.filled);
+        this.start += from;
+        this.filled -= from;
+      }
+      const v = x[this.start + this.filled - 1 - base];
+      buf[this.filled] = buf[this.filled - 1] + v * v;
+      this.filled++;
+    }
+    return buf.subarray(t0 - this.start, end - this.start);
+  }
+}
+
+/**
  * Cross-correlation c(τ) = Σ_{j<W} x[t+j]·x[t+j+τ], τ = 0…lags−1, of a window of `blocks` blocks
  * with the signal that follows, assembled per block in the frequency domain (module comment, item 2).
  *
@@ -355,7 +549,7 @@ class BlockCorrelator {
   private readonly qIm: Float64Array;
 
   constructor(
-    private readonly x: Float32Array,
+    private readonly x: DecimatedStream,
     private readonly hop: number,
     private readonly blocks: number,
     lags: number,
@@ -395,9 +589,10 @@ class BlockCorrelator {
       const s1 = ((b0 + 1) % this.ring) * bins;
       const start0 = Math.min(x.length, b0 * hop);
       const start1 = Math.min(x.length, start0 + hop);
+      const both = x.view(start0, Math.min(x.length, start1 + hop));
       this.fft.forwardPair(
-        x.subarray(start0, start1),
-        x.subarray(start1, Math.min(x.length, start1 + hop)),
+        both.subarray(0, start1 - start0),
+        both.subarray(start1 - start0),
         xRe.subarray(s0, s0 + bins),
         xIm.subarray(s0, s0 + bins),
         xRe.subarray(s1, s1 + bins),

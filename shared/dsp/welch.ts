@@ -41,6 +41,8 @@ export interface WelchSpectrum extends PowerSpectrum {
 /**
  * One-sided PSD by Welch's method: periodic Hann segments of `size` samples with 50 % overlap
  * (hop size/2), periodograms averaged, density scaling as in the module comment (Welch 1967).
+ * Segments go through the FFT in pairs (RealFft.forwardPair, two real transforms in one complex
+ * one); their periodograms are added in segment order.
  *
  * Segments start at 0, size/2, size, …; trailing samples that do not fill a whole segment are not
  * used (at most size/2 − 1 of them, as scipy.signal.welch does). A signal shorter than `size` (but
@@ -76,8 +78,6 @@ export function welchPsd(
   const fft = new RealFft(size);
   const bins = fft.bins;
   const acc = new Float64Array(bins);
-  const power = new Float64Array(bins);
-  const seg = new Float64Array(size);
 
   const segLen = Math.min(n, size);
   const w = segLen >= 4 ? hannWindow(segLen) : new Float64Array(segLen).fill(1);
@@ -86,12 +86,28 @@ export function welchPsd(
 
   const hop = size / 2;
   const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
-  for (let s = 0; s < segments; s++) {
-    const start = s * hop;
-    for (let i = 0; i < segLen; i++) seg[i] = signal[start + i] * w[i];
-    // seg[segLen…] stays 0: zero padding for a short signal
-    fft.powerSpectrum(seg, power);
-    for (let k = 0; k < bins; k++) acc[k] += power[k];
+  // Segments go through the FFT two at a time (RealFft.forwardPair: one complex FFT for two real
+  // segments); an odd last one, or a lone short signal, alone. seg[segLen…] stays 0: zero padding.
+  const segA = new Float64Array(size);
+  const segB = new Float64Array(size);
+  const aRe = new Float64Array(bins);
+  const aIm = new Float64Array(bins);
+  const bRe = new Float64Array(bins);
+  const bIm = new Float64Array(bins);
+  let s = 0;
+  for (; s + 1 < segments; s += 2) {
+    windowInto(signal, s * hop, w, segLen, segA);
+    windowInto(signal, (s + 1) * hop, w, segLen, segB);
+    fft.forwardPair(segA, segB, aRe, aIm, bRe, bIm);
+    for (let k = 0; k < bins; k++) {
+      acc[k] += aRe[k] * aRe[k] + aIm[k] * aIm[k];
+      acc[k] += bRe[k] * bRe[k] + bIm[k] * bIm[k];
+    }
+  }
+  if (s < segments) {
+    windowInto(signal, s * hop, w, segLen, segA);
+    fft.powerSpectrum(segA, aRe);
+    for (let k = 0; k < bins; k++) acc[k] += aRe[k];
   }
 
   const binHz = sampleRate / size;
@@ -104,4 +120,9 @@ export function welchPsd(
     frequencyHz[k] = k * binHz;
   }
   return { frequencyHz, psd, binHz, segments, size };
+}
+
+/** out[i] = x[start + i]·w[i] for i < len (the windowed segment; out beyond len is left alone). */
+function windowInto(x: Float32Array, start: number, w: Float64Array, len: number, out: Float64Array): void {
+  for (let i = 0; i < len; i++) out[i] = x[start + i] * w[i];
 }

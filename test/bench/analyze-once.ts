@@ -1,25 +1,51 @@
 /**
- * Child process of the benchmark: decodes and analyses one file, then prints its own timings and
- * peak resident memory as JSON. Run alone so the memory figure is the analysis's, not the generator's.
+ * Child process of the benchmark: decodes and analyses one file the way the command line does
+ * (server/cli/commands/analyze.ts, loadAndAnalyze: the analysis worker started before decoding, the
+ * modulation mix written into shared memory while decoding, analyzeClipParallel), then prints its
+ * own timings and peak resident memory as JSON. Run alone so the memory figure is the analysis's,
+ * not the generator's.
+ *
+ * `--sequential` times analyzeClip on one thread instead (no worker), for comparison.
+ * Output: decodeMs, analyzeMs, totalMs (from before the worker start to the result), stagesMs
+ * (each task's duration, keyed "thread:task" in the parallel run, by stage in the sequential one),
+ * timeline (each task's start and end, ms from the start of the analysis), durationS, maxRssMiB.
  */
-import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
+import { analyzeClipParallel, startAnalysisWorker } from '../../server/analysis/analyze-parallel.ts';
+import { sharedSourceWriter } from '../../server/analysis/shared-source.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
+import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 
 const file = process.argv[2];
+const sequential = process.argv.includes('--sequential');
 const t0 = performance.now();
-const clip = await decodeAudioFile(file);
+const worker = sequential ? undefined : startAnalysisWorker();
+const mix = sequential ? undefined : sharedSourceWriter('mix');
+const clip = await decodeAudioFile(file, { onFrames: mix?.onFrames });
 const t1 = performance.now();
 const stages: Record<string, number> = {};
-let last = t1;
-let lastStage = '';
-analyzeClip(clip, {
-  onProgress: (_f, stage) => {
-    const now = performance.now();
-    if (lastStage) stages[lastStage] = now - last;
-    last = now;
-    lastStage = stage;
-  },
-});
+const timeline: string[] = [];
+if (sequential) {
+  let last = t1;
+  let lastStage = '';
+  analyzeClip(clip, {
+    onProgress: (_f, stage) => {
+      const now = performance.now();
+      if (lastStage) stages[lastStage] = now - last;
+      last = now;
+      lastStage = stage;
+    },
+  });
+} else {
+  const origin = performance.timeOrigin + t1;
+  await analyzeClipParallel(clip, {
+    worker,
+    sharedSource: mix?.source() ?? undefined,
+    onTask: (t) => {
+      stages[`${t.thread}:${t.task}`] = t.endMs - t.startMs;
+      timeline.push(`${t.thread} ${t.task} ${(t.startMs - origin).toFixed(0)}–${(t.endMs - origin).toFixed(0)}`);
+    },
+  });
+}
 const t2 = performance.now();
 process.stdout.write(
   JSON.stringify({
@@ -27,6 +53,7 @@ process.stdout.write(
     analyzeMs: t2 - t1,
     totalMs: t2 - t0,
     stagesMs: stages,
+    timeline,
     durationS: clip.channels[0].length / clip.sampleRate,
     maxRssMiB: process.resourceUsage().maxRSS / 1024,
   }) + '\n',

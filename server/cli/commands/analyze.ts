@@ -1,8 +1,10 @@
 import { resolve } from 'node:path';
-import { type AnalyzeOptions, analyzeClip } from '../../../shared/analysis/analyze-clip.ts';
+import type { AnalyzeOptions, ClipAnalysis } from '../../../shared/analysis/analyze-clip.ts';
 import { type AnalysisSummary, summarizeAnalysis } from '../../../shared/analysis/summary.ts';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
+import { analyzeClipParallel, startAnalysisWorker } from '../../analysis/analyze-parallel.ts';
+import { sharedSourceWriter } from '../../analysis/shared-source.ts';
 import { decodeAudioFile } from '../../audio/decode.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { CliIo, Command } from '../io.ts';
@@ -12,21 +14,35 @@ import { alignRows } from '../format.ts';
 const USAGE = 'coilcue analyze <file> [--json] [--channel mix|left|right] [--frame-ms N]';
 const CHANNELS = ['mix', 'left', 'right'] as const;
 
-/** Decodes a file and analyses it; decode progress is the first half of the bar. Shared by other commands. */
+/**
+ * Decodes a file and analyses it on both cores (server/analysis/analyze-parallel.ts): the analysis
+ * worker starts before decoding, so its start-up overlaps it, and the modulation source is written
+ * into shared memory block by block as the file is decoded, so the worker starts on it at once.
+ * The same analysis as analyzeClip. Decode progress is the first half of the bar. Shared by other
+ * commands.
+ */
 export async function loadAndAnalyze(
   file: string,
   io: CliIo,
   opts: Omit<AnalyzeOptions, 'onProgress'> = {},
-): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ReturnType<typeof analyzeClip> }> {
+): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ClipAnalysis }> {
   const bar = progressBar(io, 'analysing');
+  const worker = startAnalysisWorker();
   try {
-    const clip = await decodeAudioFile(resolve(io.cwd, file), { onProgress: (f) => bar.update(0.5 * f, 'decoding') });
+    const source = sharedSourceWriter(opts.channel ?? 'mix');
+    const clip = await decodeAudioFile(resolve(io.cwd, file), { onProgress: (f) => bar.update(0.5 * f, 'decoding'), onFrames: source.onFrames });
     if (opts.channel === 'right' && clip.channels.length < 2) {
       throw new InputError('bad-arguments', `--channel right asked of a mono file (${file}); use --channel mix or left`);
     }
-    const analysis = analyzeClip(clip, { ...opts, onProgress: (f, stage) => bar.update(0.5 + 0.5 * f, stage) });
+    const analysis = await analyzeClipParallel(clip, {
+      ...opts,
+      worker,
+      sharedSource: source.source() ?? undefined,
+      onProgress: (f, stage) => bar.update(0.5 + 0.5 * f, stage),
+    });
     return { clip, analysis };
   } finally {
+    void worker.terminate();
     bar.done();
   }
 }

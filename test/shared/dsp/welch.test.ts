@@ -1,3 +1,4 @@
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { welchPsd } from '../../../shared/dsp/welch.ts';
 import { hannWindow } from '../../../shared/dsp/window.ts';
@@ -165,4 +166,32 @@ describe('welchPsd: short and bad input', () => {
     expect(() => welchPsd(new Float32Array(10), 0)).toThrow(/sampleRate/);
     expect(() => welchPsd(new Float32Array(10), Number.NaN)).toThrow(RangeError);
   });
+});
+
+// fft-js (devDependency), a separate recursive radix-2 FFT, as the oracle for each segment's DFT.
+const oracle = createRequire(import.meta.url)('fft-js') as { fft(x: number[]): [number, number][] };
+
+describe('welchPsd: each bin against periodograms from an independent FFT', () => {
+  // Segments are transformed two at a time (forwardPair) with an odd one alone: 5 and 6 segments
+  // cover both. Reference: the module comment's formula with the oracle's DFT of every Hann-windowed
+  // segment. Tolerance 1e-12 relative to the largest bin: two FFTs of 64 points differ by rounding only.
+  for (const segments of [5, 6]) {
+    it(`${segments} segments of 64: psd[k] = cₖ·mean|DFT(w·x)|²/(fs·Σw²) in every bin`, () => {
+      const size = 64;
+      const fs = 8000;
+      const x = uniformNoise(size + (segments - 1) * (size / 2) + 7, 0.7, 31 + segments);
+      const s = welchPsd(x, fs, { size });
+      expect(s.segments).toBe(segments);
+      const w = hannWindow(size);
+      const sumW2 = w.reduce((a, v) => a + v * v, 0);
+      const want = new Float64Array(size / 2 + 1);
+      for (let g = 0; g < segments; g++) {
+        const X = oracle.fft(Array.from({ length: size }, (_, i) => w[i] * x[g * (size / 2) + i]));
+        for (let k = 0; k <= size / 2; k++) want[k] += X[k][0] ** 2 + X[k][1] ** 2;
+      }
+      for (let k = 0; k <= size / 2; k++) want[k] *= (k === 0 || k === size / 2 ? 1 : 2) / (segments * fs * sumW2);
+      const top = Math.max(...want);
+      for (let k = 0; k <= size / 2; k++) expect(Math.abs(s.psd[k] - want[k])).toBeLessThan(1e-12 * top);
+    });
+  }
 });

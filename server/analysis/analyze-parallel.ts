@@ -1,0 +1,296 @@
+/**
+ * The clip analysis on both cores: the same ClipAnalysis as analyzeClip (shared/analysis), with the
+ * tasks of shared/analysis/tasks.ts shared between this thread and one `worker_threads` worker.
+ *
+ * How the work is shared. The modulation source goes in shared memory, so the worker reads it
+ * without a copy of its own: made while decoding (shared-source.ts; the caller passes it as
+ * `sharedSource`), or else written here (the mix straight into a SharedArrayBuffer, a single
+ * channel copied into one unless it is there already). The tasks sit in one list and each thread
+ * takes the next one whenever it is free, with an atomic increment of a shared counter, so each
+ * runs exactly once (greedy list scheduling; longest first is within 4/3 of the best split on two
+ * processors: R. L. Graham, "Bounds on multiprocessing timing anomalies", SIAM J. Appl. Math.
+ * 17(2), 1969). The channel tasks (levels, true peak, loudness) read every channel, so they run
+ * here, first, while the worker starts on the source tasks, longest first; this thread then joins
+ * in. Channels that a caller put in shared memory put the channel tasks in the list too, ahead of
+ * the source tasks, which then wait for the source (a flag in shared memory). The decoder leaves
+ * channels in ordinary memory: Web Audio's copyToChannel refuses shared memory, and the render
+ * hands the channels to it. Each task's output is the same whichever thread computed it (the same
+ * code on the same samples), so the result equals analyzeClip's exactly.
+ *
+ * Failure: if the worker cannot start, dies, or a task throws in it, this thread runs whatever it
+ * did not deliver. If a task throws here (samples analyzeClip would refuse too, such as NaN), the
+ * analysis is redone by analyzeClip, so the caller gets the very error analyzeClip throws first.
+ * The worker is terminated when the analysis ends, however it ends.
+ *
+ * Starting a worker costs about 0.3 s (a V8 isolate, tsx, compiling the DSP modules): start it with
+ * startAnalysisWorker() before decoding and pass it in, so that time overlaps the decoding.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import {
+  type AnalyzeOptions,
+  type AnalyzeSettings,
+  type ClipAnalysis,
+  analyzeClip,
+  combineAnalysis,
+  resolveAnalyzeSettings,
+} from '../../shared/analysis/analyze-clip.ts';
+import {
+  type AnalysisTask,
+  CHANNEL_TASKS,
+  type SourceTask,
+  type SourceTaskSettings,
+  type TaskOutputs,
+  channelFigures,
+  runChannelTask,
+  runSourceTask,
+  sourceIsTheClip,
+} from '../../shared/analysis/tasks.ts';
+import type { AudioClip } from '../../shared/audio/clip.ts';
+import { matchesModulationSource, writeModulationSource } from './shared-source.ts';
+import { type AnalysisJob, type WorkerReply, epochMs } from './worker-tasks.ts';
+
+const WORKER_ENTRY = new URL('./worker-entry.cjs', import.meta.url);
+
+/**
+ * Tasks in the order they are taken. Measured CPU time on a 5-minute 44.1 kHz stereo clip on the
+ * project machine (ms; ±30 % from run to run, and up to 1.5× more while both cores are busy): pitch
+ * 550–900, spectrum (Welch) 450–850, loudness 160–300, true peak 130–270, levels 110–230,
+ * spectrogram 120–270, frames with envelopes 130–230, histogram 120–260, source levels 60–110,
+ * making the mix 80–150. The channel tasks come first: the worker can run them while this thread
+ * writes the mix, which the source tasks wait for; then the longest first (Graham 1969).
+ */
+const ORDER_ALL: readonly AnalysisTask[] = ['loudness', 'true peak', 'pitch', 'spectrum', 'levels', 'spectrogram', 'frames', 'histogram', 'source levels'];
+/** The same without the channel tasks, for channels the worker cannot read (not in shared memory). */
+const ORDER_SOURCE: readonly AnalysisTask[] = ORDER_ALL.filter((t) => !(CHANNEL_TASKS as readonly string[]).includes(t));
+
+/** When and where one task ran, epoch milliseconds (for benchmarks). 'mix' is making the shared source. */
+export interface TaskTiming {
+  task: AnalysisTask | 'mix';
+  thread: 'main' | 'worker';
+  startMs: number;
+  endMs: number;
+}
+
+/** analyzeClip's options, and what the two threads need besides. */
+export interface ParallelAnalyzeOptions extends AnalyzeOptions {
+  /** A worker from startAnalysisWorker(), started early; analyzeClipParallel terminates it. Default: one started here. */
+  worker?: AnalysisWorker;
+  /**
+   * The modulation source in shared memory, made while decoding (shared-source.ts,
+   * sharedSourceWriter), so the worker can start at once. Checked (matchesModulationSource) and
+   * ignored if it does not fit; default: written here.
+   */
+  sharedSource?: Float32Array;
+  /** Called as each task finishes (worker tasks when their output arrives), with where and when it ran. */
+  onTask?: (t: TaskTiming) => void;
+}
+
+type Reply = WorkerReply | { type: 'gone' };
+
+/**
+ * A worker thread for one analysis (analyzeClipParallel). It begins loading at once; until a job is
+ * submitted it does not keep the process alive. `available` is false once it has failed, been
+ * terminated or been given its job.
+ *
+ * @example const w = new AnalysisWorker(); (await w.ready) // true once its modules are loaded
+ */
+export class AnalysisWorker {
+  private worker: Worker | null = null;
+  private onReply: ((m: Reply) => void) | null = null;
+  private dead = false;
+  private submitted = false;
+  /** Resolves true when the worker has loaded its modules, false if it failed to start. */
+  readonly ready: Promise<boolean>;
+
+  /** `entry`: the worker's script (default worker-entry.cjs); null for none (the analysis stays in this thread). */
+  constructor(entry: URL | null = WORKER_ENTRY) {
+    let settle: (ok: boolean) => void = () => undefined;
+    this.ready = new Promise((resolve) => (settle = resolve));
+    try {
+      if (entry === null) throw new RangeError('no worker');
+      // A small young generation: the worker allocates typed arrays (outside the V8 heap) and few
+      // objects, and the default semi-spaces cost ~7 MiB of peak RSS (measured on the 5-minute bench).
+      this.worker = new Worker(entry, { resourceLimits: { maxYoungGenerationSizeMb: 2 } });
+    } catch {
+      this.dead = true;
+      settle(false);
+      return;
+    }
+    const worker = this.worker;
+    worker.unref();
+    worker.on('message', (m: WorkerReply) => {
+      if (m.type === 'ready') settle(true);
+      else this.onReply?.(m);
+    });
+    const gone = () => {
+      settle(false);
+      this.stop();
+    };
+    worker.on('error', gone);
+    worker.on('exit', gone);
+  }
+
+  /** Marks the worker gone and tells the job, once. */
+  private stop(): void {
+    const reply = this.onReply;
+    this.dead = true;
+    this.onReply = null;
+    reply?.({ type: 'gone' });
+  }
+
+  /** False once the worker has failed, exited or been terminated, or has a job already. */
+  get available(): boolean {
+    return !this.dead && !this.submitted;
+  }
+
+  /** Sends the one job this worker will do; replies go to `onReply`. False (and nothing sent) if not available. */
+  submit(job: AnalysisJob, onReply: (m: Reply) => void): boolean {
+    if (!this.available || !this.worker) return false;
+    this.submitted = true;
+    this.onReply = onReply;
+    this.worker.ref(); // its replies must keep the process alive
+    this.worker.postMessage(job);
+    return true;
+  }
+
+  /** Stops the thread (idempotent); a job in progress is told the worker is gone. Resolves when it has exited. */
+  async terminate(): Promise<void> {
+    const w = this.worker;
+    this.worker = null;
+    this.stop();
+    if (!w) return;
+    w.unref();
+    await w.terminate().catch(() => undefined);
+  }
+}
+
+/**
+ * Starts a worker for analyzeClipParallel; do it before decoding so its start-up overlaps the
+ * decoding. Never throws: a worker that cannot start only makes the analysis single-threaded. On a
+ * machine with one core no thread is started (it could only slow the analysis down).
+ *
+ * @example const worker = startAnalysisWorker(); const clip = await decodeAudioFile(f); await analyzeClipParallel(clip, { worker })
+ */
+export function startAnalysisWorker(): AnalysisWorker {
+  return new AnalysisWorker(availableParallelism() > 1 ? WORKER_ENTRY : null);
+}
+
+const sourceSettings = (s: AnalyzeSettings): SourceTaskSettings => ({
+  frameS: s.frameS,
+  attackS: s.attackS,
+  releaseS: s.releaseS,
+  rmsWindowS: s.rmsWindowS,
+  fftSize: s.fftSize,
+  bands: s.bands,
+});
+
+/**
+ * analyzeClip on two threads (module comment): resolves to the same ClipAnalysis, or rejects with
+ * the same RangeError. `onProgress` gets (tasks done / tasks, name of the task starting here or
+ * finished in the worker), non-decreasing, then (1, 'done'); `onTask` the timing of each task.
+ *
+ * @example const a = await analyzeClipParallel(clip, { channel: 'mix' }); a.loudness.integratedLufs
+ */
+export async function analyzeClipParallel(clip: AudioClip, opts: ParallelAnalyzeOptions = {}): Promise<ClipAnalysis> {
+  let worker: AnalysisWorker | undefined = opts.worker;
+  try {
+    const s = resolveAnalyzeSettings(clip, opts);
+    worker ??= startAnalysisWorker();
+    try {
+      return await analyzeShared(clip, s, worker, opts);
+    } catch {
+      // A task threw (bad samples from a caller, such as NaN): several tasks may notice, in any
+      // order here; analyzeClip's order decides which error the caller sees, so let it throw that.
+      void worker.terminate();
+      return analyzeClip(clip, { ...opts, onProgress: undefined });
+    }
+  } finally {
+    void worker?.terminate();
+  }
+}
+
+async function analyzeShared(clip: AudioClip, s: AnalyzeSettings, worker: AnalysisWorker, opts: ParallelAnalyzeOptions): Promise<ClipAnalysis> {
+  const fs = clip.sampleRate;
+  const settings = sourceSettings(s);
+  const useWorker = worker.available;
+  const n = clip.channels[0].length;
+  const channelsShared = useWorker && clip.channels.every((c) => c.buffer instanceof SharedArrayBuffer);
+  const single = s.channel === 'left' || clip.channels.length === 1 ? clip.channels[0] : s.channel === 'right' ? clip.channels[1] : null;
+  // The source in shared memory for the worker: the caller's, a channel already there, or one to write.
+  let shared: Float32Array | null = null;
+  let toWrite = false;
+  if (useWorker) {
+    if (opts.sharedSource && matchesModulationSource(clip, s.channel, opts.sharedSource)) shared = opts.sharedSource;
+    else if (single?.buffer instanceof SharedArrayBuffer) shared = single;
+    else {
+      shared = new Float32Array(new SharedArrayBuffer(4 * n));
+      toWrite = true;
+    }
+  }
+  // The source as this thread reads it: the clip's own channel, else the mix (the shared one when there is one).
+  const source = single ?? shared ?? new Float32Array(n);
+  const tasks = (channelsShared ? ORDER_ALL : ORDER_SOURCE).filter((t) => t !== 'source levels' || !sourceIsTheClip(clip, source));
+  const mainOnly = channelsShared ? [] : CHANNEL_TASKS;
+  const sync = new Int32Array(new SharedArrayBuffer(8));
+  if (!toWrite) sync[1] = 1; // the source is ready
+  const outputs: { [K in AnalysisTask]?: TaskOutputs[K] } = {};
+  const total = tasks.length + mainOnly.length;
+  let done = 0;
+  let lastFraction = 0;
+  const progress = (stage: string) => {
+    lastFraction = Math.max(lastFraction, done / total);
+    opts.onProgress?.(lastFraction, stage);
+  };
+  const store = (task: AnalysisTask, output: unknown) => {
+    (outputs as Record<string, unknown>)[task] = output;
+    done++;
+  };
+
+  let workerFinished: () => void = () => undefined;
+  const finished = new Promise<void>((resolve) => (workerFinished = resolve));
+  const accepted =
+    shared !== null &&
+    worker.submit({ sampleRate: fs, channels: channelsShared ? clip.channels : [], source: shared, settings, tasks: [...tasks], sync }, (m) => {
+      if (m.type === 'result') {
+        store(m.task, m.output);
+        opts.onTask?.({ task: m.task, thread: 'worker', startMs: m.startMs, endMs: m.endMs });
+        progress(m.task);
+      } else if (m.type === 'done' || m.type === 'gone') {
+        workerFinished();
+      } // 'failed': the task is left to this thread, which will meet the error itself
+    });
+  if (!accepted) workerFinished();
+
+  // the source, if not made already (the worker meanwhile runs channel tasks, or waits); then let the worker read it
+  if (toWrite || (single === null && shared === null)) {
+    const t0 = epochMs();
+    writeModulationSource(clip.channels, s.channel, toWrite ? shared! : source, 0, n);
+    Atomics.store(sync, 1, 1);
+    Atomics.notify(sync, 1);
+    opts.onTask?.({ task: 'mix', thread: 'main', startMs: t0, endMs: epochMs() });
+  }
+
+  const runHere = (task: AnalysisTask) => {
+    progress(task);
+    const a = epochMs();
+    const out = (CHANNEL_TASKS as readonly string[]).includes(task)
+      ? runChannelTask(task as (typeof CHANNEL_TASKS)[number], clip)
+      : runSourceTask(task as SourceTask, source, fs, settings);
+    opts.onTask?.({ task, thread: 'main', startMs: a, endMs: epochMs() });
+    store(task, out);
+  };
+  for (const t of mainOnly) runHere(t);
+  for (;;) {
+    const i = Atomics.add(sync, 0, 1);
+    if (i >= tasks.length) break;
+    runHere(tasks[i]);
+  }
+  if (tasks.some((t) => outputs[t] === undefined)) await finished;
+  // whatever the worker took but did not deliver (it died, or its task threw): run it here
+  for (const t of tasks) if (outputs[t] === undefined) runHere(t);
+  opts.onProgress?.(1, 'done');
+  const o = outputs as Required<TaskOutputs>;
+  const part = channelFigures(s, o.levels, o['true peak'], o.loudness, outputs['source levels'], o.frames, o.histogram);
+  return combineAnalysis(clip, s, part, { ...o.spectrum, spectrogram: o.spectrogram, pitch: o.pitch });
+}

@@ -1,0 +1,14 @@
+// Entry of the analysis worker thread (see analyze-parallel.ts).
+//
+// Why a CommonJS file: Node 20 does not carry a loader into worker threads, and tsx's ESM hooks in
+// a worker start one more hooks thread (another isolate, measured ~4 MiB more). tsx's CommonJS
+// hook (`tsx/cjs/api`) works inside this thread alone: once registered, require() compiles the
+// TypeScript of shared/ and server/ (ES module syntax included), under `node bin/coilcue.js`,
+// `node --import tsx` and Vitest alike. If tsx cannot load, this throws and the main thread falls
+// back to analysing alone.
+'use strict';
+const { parentPort } = require('node:worker_threads');
+require('tsx/cjs/api').register();
+const { serveAnalysisJobs } = require('./worker-tasks.ts');
+
+serveAnalysisJobs(parentPort);

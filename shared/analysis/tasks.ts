@@ -1,0 +1,164 @@
+/**
+ * The clip analysis cut into independent tasks, each one call of a shared/dsp measurement, so they
+ * can run in any order and on any thread (analyze-clip.ts runs them in order in one thread;
+ * server/analysis/analyze-parallel.ts shares them between the main thread and a worker). A task's
+ * output depends only on its inputs, so where it ran never changes the analysis.
+ *
+ * Channel tasks read every channel of the clip; source tasks read only the modulation source, one
+ * Float32Array, which is what a worker thread gets (in shared memory).
+ */
+import type { AudioClip } from '../audio/clip.ts';
+import { peakEnvelopeFrames, rmsEnvelope } from '../dsp/envelope.ts';
+import { type FrameStats, computeFrameStats } from '../dsp/frame-stats.ts';
+import { type MagnitudeHistogram, magnitudeHistogram } from '../dsp/histogram.ts';
+import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/level.ts';
+import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
+import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
+import { bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
+import { type DisplaySpectrogram, displaySpectrogram } from '../dsp/spectrogram.ts';
+import { type TruePeakReport, measureTruePeak } from '../dsp/true-peak.ts';
+import { welchPsd } from '../dsp/welch.ts';
+import { ampToDb } from '../units.ts';
+import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './analyze-clip.ts';
+
+/** Tasks that read every channel. */
+export const CHANNEL_TASKS = ['levels', 'true peak', 'loudness'] as const;
+export type ChannelTask = (typeof CHANNEL_TASKS)[number];
+
+/** Tasks that read only the modulation source. */
+export const SOURCE_TASKS = ['source levels', 'frames', 'histogram', 'spectrum', 'spectrogram', 'pitch'] as const;
+export type SourceTask = (typeof SOURCE_TASKS)[number];
+
+export type AnalysisTask = ChannelTask | SourceTask;
+
+/** What each task returns. */
+export interface TaskOutputs {
+  levels: LevelReport;
+  'true peak': TruePeakReport;
+  loudness: LoudnessReport;
+  /** Level figures of the source alone. */
+  'source levels': ChannelLevels;
+  /** Frame statistics and the two envelopes built on them. */
+  frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array };
+  histogram: MagnitudeHistogram;
+  /** Welch PSD and the features read from it. */
+  spectrum: Omit<SpectrumFigures, 'spectrogram' | 'pitch'>;
+  spectrogram: DisplaySpectrogram;
+  pitch: PitchTrack;
+}
+
+/** The settings a source task reads: plain data (no functions), so it can be posted to a worker. */
+export type SourceTaskSettings = Omit<AnalyzeSettings, 'channel'>;
+
+/**
+ * Runs one channel task on the clip (levels: measureLevels; true peak: measureTruePeak, ITU-R
+ * BS.1770-4 Annex 2; loudness: measureLoudness, BS.1770-4 and EBU Tech 3342).
+ *
+ * @example runChannelTask('loudness', clip).integratedLufs // −23.0 for the BS.1770 calibration tone
+ */
+export function runChannelTask<T extends ChannelTask>(task: T, clip: AudioClip): TaskOutputs[T] {
+  const { channels, sampleRate } = clip;
+  const out: { [K in ChannelTask]?: TaskOutputs[K] } = {};
+  if (task === 'levels') out.levels = measureLevels(channels, { sampleRate });
+  else if (task === 'true peak') out['true peak'] = measureTruePeak(channels, sampleRate);
+  else if (task === 'loudness') out.loudness = measureLoudness(channels, sampleRate);
+  else throw new RangeError(`runChannelTask: unknown task ${String(task)}`);
+  return out[task] as TaskOutputs[T];
+}
+
+/**
+ * Runs one source task on the modulation source: its levels (measureLevels), frame statistics with
+ * the peak and RMS envelopes, magnitude histogram, Welch spectrum with its features (Welch 1967),
+ * display spectrogram, or YIN pitch track (de Cheveigné & Kawahara 2002). The choices analyzeClip
+ * makes are here: a spectrogram of two FFT frames per column (plenty for a display, and it keeps
+ * five minutes fast) and a pitch hop of 20 ms (melodic notes last ≥ ~50 ms) up to min(2 kHz, fs/4).
+ *
+ * @param source modulation source samples, full scale ±1
+ * @param sampleRate Hz
+ * @example runSourceTask('spectrum', mix, 44100, settings).dominantHz // ≈ 440 for an A4 tone
+ */
+export function runSourceTask<T extends SourceTask>(
+  task: T,
+  source: Float32Array,
+  sampleRate: number,
+  s: SourceTaskSettings,
+): TaskOutputs[T] {
+  const out: { [K in SourceTask]?: TaskOutputs[K] } = {};
+  switch (task as SourceTask) {
+    case 'source levels':
+      out['source levels'] = measureLevels([source], { sampleRate }).overall;
+      break;
+    case 'frames': {
+      const frames = computeFrameStats(source, sampleRate, { frameS: s.frameS });
+      const peak = peakEnvelopeFrames(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
+      const rms = rmsEnvelope(frames, { windowS: s.rmsWindowS });
+      out.frames = { frames, peak, rms };
+      break;
+    }
+    case 'histogram':
+      out.histogram = magnitudeHistogram(source);
+      break;
+    case 'spectrum': {
+      const welch = welchPsd(source, sampleRate, { size: s.fftSize });
+      out.spectrum = {
+        welch,
+        centroidHz: spectralCentroidHz(welch),
+        rolloff95Hz: rolloffHz(welch, 0.95),
+        dominantHz: dominantHz(welch),
+        bands: bandEnergyFractions(welch, s.bands),
+      };
+      break;
+    }
+    case 'spectrogram':
+      out.spectrogram = displaySpectrogram(source, sampleRate, { maxFramesPerColumn: 2 });
+      break;
+    case 'pitch':
+      out.pitch = yinPitchTrack(source, sampleRate, { hopS: 0.02, maxHz: Math.min(2000, sampleRate / 4) });
+      break;
+    default:
+      throw new RangeError(`runSourceTask: unknown task ${String(task)}`);
+  }
+  return out[task] as TaskOutputs[T];
+}
+
+/**
+ * True when the source's level figures are the clip's overall ones, so 'source levels' need not run:
+ * the source is the very array of a mono clip's only channel (analyzeClip's rule).
+ *
+ * @example sourceIsTheClip(monoClip, monoClip.channels[0]) // true
+ */
+export const sourceIsTheClip = (clip: AudioClip, source: Float32Array): boolean =>
+  clip.channels.length === 1 && source === clip.channels[0];
+
+/**
+ * The channel part's figures from its task outputs. The modulation source's true peak: exact for a
+ * single channel (that channel's); for the mix, the largest channel's, an upper bound (the
+ * oversampling filter is linear, so |mean of channels| ≤ max |channel| at every oversampled
+ * instant) that spares a third filter pass. `sourceLevels` absent: the source is the clip itself.
+ *
+ * @example channelFigures(s, out.levels, out['true peak'], out.loudness, out['source levels'], out.frames, out.histogram).level.modulation.truePeakDbtp
+ */
+export function channelFigures(
+  s: AnalyzeSettings,
+  levels: LevelReport,
+  tp: TruePeakReport,
+  loudness: LoudnessReport,
+  sourceLevels: ChannelLevels | undefined,
+  frames: TaskOutputs['frames'],
+  histogram: MagnitudeHistogram,
+): ChannelFigures {
+  const which = s.channel;
+  const sourceTp = which === 'mix' ? tp.truePeakDbtp : ampToDb(tp.perChannelLinear[which === 'right' ? 1 : 0]);
+  return {
+    level: {
+      ...levels.overall,
+      truePeakDbtp: tp.truePeakDbtp,
+      perChannel: levels.perChannel.map((l, i) => ({ ...l, truePeakDbtp: ampToDb(tp.perChannelLinear[i]) })),
+      modulation: { ...(sourceLevels ?? levels.overall), truePeakDbtp: sourceTp },
+    },
+    loudness,
+    frames: frames.frames,
+    envelope: { attackS: s.attackS, releaseS: s.releaseS, rmsWindowS: s.rmsWindowS, peak: frames.peak, rms: frames.rms },
+    histogram,
+  };
+}
