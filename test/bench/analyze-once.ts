@@ -15,46 +15,49 @@ import { sharedSourceWriter } from '../../server/analysis/shared-source.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 
-const file = process.argv[2];
-const sequential = process.argv.includes('--sequential');
-const t0 = performance.now();
-const worker = sequential ? undefined : startAnalysisWorker();
-const mix = sequential ? undefined : sharedSourceWriter('mix');
-const clip = await decodeAudioFile(file, { onFrames: mix?.onFrames });
-const t1 = performance.now();
-const stages: Record<string, number> = {};
-const timeline: string[] = [];
-if (sequential) {
-  let last = t1;
-  let lastStage = '';
-  analyzeClip(clip, {
-    onProgress: (_f, stage) => {
-      const now = performance.now();
-      if (lastStage) stages[lastStage] = now - last;
-      last = now;
-      lastStage = stage;
-    },
-  });
-} else {
-  const origin = performance.timeOrigin + t1;
-  await analyzeClipParallel(clip, {
-    worker,
-    sharedSource: mix?.source() ?? undefined,
-    onTask: (t) => {
-      stages[`${t.thread}:${t.task}`] = t.endMs - t.startMs;
-      timeline.push(`${t.thread} ${t.task} ${(t.startMs - origin).toFixed(0)}–${(t.endMs - origin).toFixed(0)}`);
-    },
-  });
+/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.js runs the product). */
+export async function main(): Promise<void> {
+  const file = process.argv[2];
+  const sequential = process.argv.includes('--sequential');
+  const t0 = performance.now();
+  const worker = sequential ? undefined : startAnalysisWorker();
+  const mix = sequential ? undefined : sharedSourceWriter('mix');
+  const clip = await decodeAudioFile(file, { onFrames: mix?.onFrames });
+  const t1 = performance.now();
+  const stages: Record<string, number> = {};
+  const timeline: string[] = [];
+  if (sequential) {
+    let last = t1;
+    let lastStage = '';
+    analyzeClip(clip, {
+      onProgress: (_f, stage) => {
+        const now = performance.now();
+        if (lastStage) stages[lastStage] = now - last;
+        last = now;
+        lastStage = stage;
+      },
+    });
+  } else {
+    const origin = performance.timeOrigin + t1;
+    await analyzeClipParallel(clip, {
+      worker,
+      sharedSource: mix?.source() ?? undefined,
+      onTask: (t) => {
+        stages[`${t.thread}:${t.task}`] = t.endMs - t.startMs;
+        timeline.push(`${t.thread} ${t.task} ${(t.startMs - origin).toFixed(0)}–${(t.endMs - origin).toFixed(0)}`);
+      },
+    });
+  }
+  const t2 = performance.now();
+  process.stdout.write(
+    JSON.stringify({
+      decodeMs: t1 - t0,
+      analyzeMs: t2 - t1,
+      totalMs: t2 - t0,
+      stagesMs: stages,
+      timeline,
+      durationS: clip.channels[0].length / clip.sampleRate,
+      maxRssMiB: process.resourceUsage().maxRSS / 1024,
+    }) + '\n',
+  );
 }
-const t2 = performance.now();
-process.stdout.write(
-  JSON.stringify({
-    decodeMs: t1 - t0,
-    analyzeMs: t2 - t1,
-    totalMs: t2 - t0,
-    stagesMs: stages,
-    timeline,
-    durationS: clip.channels[0].length / clip.sampleRate,
-    maxRssMiB: process.resourceUsage().maxRSS / 1024,
-  }) + '\n',
-);

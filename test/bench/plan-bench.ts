@@ -5,7 +5,7 @@ import { fileURLToPath } from 'node:url';
 /** Times the gain advice on the benchmark clip (target from the planning issue: well under a second). */
 export async function runPlanBench(wav: string): Promise<void> {
   const here = fileURLToPath(new URL('.', import.meta.url));
-  const out = execFileSync(process.execPath, ['--import', 'tsx', join(here, 'plan-once.ts'), wav], { encoding: 'utf8' });
+  const out = execFileSync(process.execPath, [join(here, 'child.mjs'), join(here, 'plan-once.ts'), wav], { encoding: 'utf8' });
   const rows = JSON.parse(out) as { driver: string; scheme: string; adviseMs: number; evaluations: number; perEvaluationMs: number; reportMs: number; advisedGainDb: number | null; binding: string | null }[];
   console.log('advice on the same 5-minute clip, demo coil (target: well under 1 s):');
   for (const r of rows) {

@@ -14,19 +14,22 @@ import { toPlanClip } from '../../shared/plan/plan-clip.ts';
 import { planClipReport } from '../../shared/plan/report.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 
-const clip = await decodeAudioFile(process.argv[2]);
-const analysis = analyzeClip(clip);
-const source = modulationSource(clip, 'mix');
-const coil = analyzeCoil(DEMO_COILS['desk-lantern']);
-const rows = DEMO_DRIVERS.map((driver) => {
-  const pc = toPlanClip('bench', analysis, source, driver);
-  const settings = planSettings(driver);
-  let t = performance.now();
-  const advice = adviseGain(pc, coil, driver, settings);
-  const adviseMs = performance.now() - t;
-  t = performance.now();
-  planClipReport(pc, coil, driver, settings, { spectrum: analysis.spectrum.welch });
-  const reportMs = performance.now() - t;
-  return { driver: driver.name, scheme: driver.scheme, adviseMs, evaluations: advice.evaluations, perEvaluationMs: adviseMs / advice.evaluations, reportMs, advisedGainDb: advice.advisedGainDb, binding: advice.binding?.limit ?? null };
-});
-process.stdout.write(JSON.stringify(rows) + '\n');
+/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.js runs the product). */
+export async function main(): Promise<void> {
+  const clip = await decodeAudioFile(process.argv[2]);
+  const analysis = analyzeClip(clip);
+  const source = modulationSource(clip, 'mix');
+  const coil = analyzeCoil(DEMO_COILS['desk-lantern']);
+  const rows = DEMO_DRIVERS.map((driver) => {
+    const pc = toPlanClip('bench', analysis, source, driver);
+    const settings = planSettings(driver);
+    let t = performance.now();
+    const advice = adviseGain(pc, coil, driver, settings);
+    const adviseMs = performance.now() - t;
+    t = performance.now();
+    planClipReport(pc, coil, driver, settings, { spectrum: analysis.spectrum.welch });
+    const reportMs = performance.now() - t;
+    return { driver: driver.name, scheme: driver.scheme, adviseMs, evaluations: advice.evaluations, perEvaluationMs: adviseMs / advice.evaluations, reportMs, advisedGainDb: advice.advisedGainDb, binding: advice.binding?.limit ?? null };
+  });
+  process.stdout.write(JSON.stringify(rows) + '\n');
+}

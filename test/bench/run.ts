@@ -33,7 +33,7 @@ try {
 
   interface Run { totalMs: number; decodeMs: number; analyzeMs: number; maxRssMiB: number; stagesMs: Record<string, number>; timeline: string[] }
   const once = (...extra: string[]): Run =>
-    JSON.parse(execFileSync(process.execPath, ['--import', 'tsx', join(here, 'analyze-once.ts'), wav, ...extra], { encoding: 'utf8' }));
+    JSON.parse(execFileSync(process.execPath, [join(here, 'child.mjs'), join(here, 'analyze-once.ts'), wav, ...extra], { encoding: 'utf8' }));
   // ffmpeg's pass is timed between our runs, so both see the same state of a shared, noisy machine.
   const hasFfmpeg = spawnSync('sh', ['-c', 'command -v ffmpeg'], { encoding: 'utf8' }).status === 0;
   const ffmpegS = (): number => {
