@@ -129,8 +129,14 @@ export function pulseLimitsFail(clip: PlanClip, driver: DriverProfile, gainDb: n
   if (driver.scheme !== 'pulse' || !clip.pulseEvents || !driver.pulse) return false;
   const train = pulsesAtGain(clip.pulseEvents, dbToAmp(gainDb), driver.pulse, scratch.train);
   scratch.train = train;
+  const { onTimeShare, dutyShare } = pulseShares(train);
+  return onTimeShare > settings.allowedShare || dutyShare > settings.allowedShare;
+}
+
+/** Shares (0…1) of the considered pulse events clamped by the on-time and by the duty limit. */
+function pulseShares(train: PulseTrain): { onTimeShare: number; dutyShare: number } {
   const denom = Math.max(1, train.events);
-  return train.onTimeClamped / denom > settings.allowedShare || train.dutyClamped / denom > settings.allowedShare;
+  return { onTimeShare: train.onTimeClamped / denom, dutyShare: train.dutyClamped / denom };
 }
 
 function check(limit: LimitName, role: DeviceRole | null, value: number, allowed: number, unit: LimitCheck['unit'], atS: number | null): LimitCheck {
@@ -163,8 +169,7 @@ export function evaluateAtGain(
     scratch.train = train;
     sim = simulatePulses(driver, coil, { startS: train.startS.subarray(0, train.count), onS: train.onS.subarray(0, train.count) }, clip.durationS, simOpts);
     const { startS: _s, onS: _o, ...counts } = train;
-    const denom = Math.max(1, train.events);
-    pulses = { ...counts, onTimeShare: train.onTimeClamped / denom, dutyShare: train.dutyClamped / denom };
+    pulses = { ...counts, ...pulseShares(train) };
   } else {
     const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, scratch);
     overModAtS = rail.firstOverModS;
