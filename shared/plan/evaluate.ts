@@ -17,7 +17,7 @@
  * - on-time (pulse scheme): share of pulses whose demanded on-time exceeds the maximum ≤ allowed share;
  * - duty (pulse scheme): share of pulses shortened by the duty limit ≤ allowed share.
  */
-import type { FrameStats } from '../dsp/frame-stats.ts';
+import { type FrameStats, railFrameMoments } from '../dsp/frame-stats.ts';
 import { type MagnitudeHistogram, fractionAbove } from '../dsp/histogram.ts';
 import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
 import { simulateRail } from '../physics/driver/simulate-rail.ts';
@@ -96,29 +96,26 @@ export function createScratch(clip: PlanClip): EvalScratch {
 }
 
 /**
- * Rail per frame at gain g: E[v] = (V/2)(1 + g·mean), E[v²] = (V²/4)(1 + 2g·mean + g²·meanSquare)
- * (linearity of expectation), clamped to the feasible set of a rail confined to 0…V:
- * E[v] ∈ [0, V], E[v²] ∈ [E[v]², V·E[v]] (since 0 ≤ v ≤ V implies v² ≤ V·v, and Jensen). In frames
- * that over-modulate the clamp is an approximation of the clipped rail (its error is bounded by
- * the over-modulation limit's small allowed share); elsewhere it is exact.
+ * Rail per frame at gain g: the moments of v = (V/2)(1 + g·x) from railFrameMoments
+ * (shared/dsp/frame-stats.ts: E[v] = (V/2)(1 + g·mean), E[v²] = (V²/4)(1 + 2g·mean + g²·meanSquare)),
+ * clamped to the feasible set of a rail confined to 0…V: E[v] ∈ [0, V], E[v²] ∈ [E[v]², V·E[v]]
+ * (since 0 ≤ v ≤ V implies v² ≤ V·v, and Jensen). In frames that over-modulate the clamp is an
+ * approximation of the clipped rail (its error is bounded by the over-modulation limit's small
+ * allowed share); elsewhere it is exact. Also returns the start of the first such frame.
  */
 export function railAtGain(frames: FrameStats, gain: number, supplyV: number, out: EvalScratch): { meanV: Float64Array; meanSquareV2: Float64Array; firstOverModS: number | null } {
-  const h = supplyV / 2;
-  const n = frames.count;
+  const { meanV, meanSquareV2 } = railFrameMoments(frames, gain, supplyV, out);
   let first: number | null = null;
-  for (let k = 0; k < n; k++) {
-    const m = frames.mean[k];
-    let ev = h * (1 + gain * m);
-    let ev2 = h * h * (1 + 2 * gain * m + gain * gain * frames.meanSquare[k]);
+  for (let k = 0; k < frames.count; k++) {
     if (first === null && (gain * frames.max[k] > 1 || gain * frames.min[k] < -1)) first = k * frames.frameS;
-    ev = ev < 0 ? 0 : ev > supplyV ? supplyV : ev;
+    const ev = meanV[k] < 0 ? 0 : meanV[k] > supplyV ? supplyV : meanV[k];
     const lo = ev * ev;
     const hi = supplyV * ev;
-    ev2 = ev2 < lo ? lo : ev2 > hi ? hi : ev2;
-    out.meanV[k] = ev;
-    out.meanSquareV2[k] = ev2;
+    const ev2 = meanSquareV2[k];
+    meanV[k] = ev;
+    meanSquareV2[k] = ev2 < lo ? lo : ev2 > hi ? hi : ev2;
   }
-  return { meanV: out.meanV.subarray(0, n), meanSquareV2: out.meanSquareV2.subarray(0, n), firstOverModS: first };
+  return { meanV, meanSquareV2, firstOverModS: first };
 }
 
 /**
