@@ -5,8 +5,6 @@
  * pre-emphasis advice. JSON-safe apart from the typed arrays of `traces` (kept out of the JSON).
  */
 import type { WelchSpectrum } from '../dsp/welch.ts';
-import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
-import { simulateRail } from '../physics/driver/simulate-rail.ts';
 import type { CoilAtResonance, DeviceTraces, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import { ThermalNetwork } from '../physics/thermal/network.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
@@ -16,6 +14,7 @@ import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './d
 import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
 import { pulsesAtGain } from './pulse-train.ts';
+import { simulateSteady } from './steady.ts';
 
 export const GAIN_CONVENTION =
   'gain 0 dB: a full-scale sample (±1.0) swings a rail scheme’s rail over its whole range (0 to the supply, around a bias at half the supply) and takes a pulse scheme’s on-time to its maximum';
@@ -96,15 +95,7 @@ export interface PlanReport {
 export function fullOperationLossW(driver: DriverProfile, coil: CoilAtResonance, ambientC: number): number[] {
   const tS = 1;
   const frameS = 0.01;
-  const n = Math.round(tS / frameS);
-  const run = (levelV: number) => {
-    if (driver.scheme === 'pulse') {
-      return simulatePulses(driver, coil, { startS: Float64Array.of(0), onS: Float64Array.of(tS) }, tS, { ambientC, traces: true, frameS });
-    }
-    const meanV = new Float64Array(n).fill(levelV);
-    const meanSquareV2 = new Float64Array(n).fill(levelV * levelV);
-    return simulateRail(driver, coil, { frameS, meanV, meanSquareV2 }, { ambientC, traces: true });
-  };
+  const run = (railV: number) => simulateSteady(driver, coil, { durationS: tS, frameS, railV, pulseOn: true, ambientC });
   const sims = driver.scheme === 'rail-linear' ? [run(driver.supplyVoltageV), run(driver.supplyVoltageV / 2)] : [run(driver.supplyVoltageV)];
   return driver.devices.map((d) =>
     Math.max(

@@ -10,12 +10,11 @@
  * after it that brings every junction back within 5 K of where it started that clip (null when
  * idling never gets there, e.g. a linear pass device that idles hotter than it started).
  */
-import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
-import { simulateRail } from '../physics/driver/simulate-rail.ts';
 import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
 import { adviseGain } from './advise.ts';
 import { type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain } from './evaluate.ts';
+import { simulateSteady } from './steady.ts';
 
 /** Within this many kelvin of the start temperature counts as recovered (from the issue's definition). */
 export const RECOVERED_WITHIN_K = 5;
@@ -56,13 +55,7 @@ export interface SetResult {
 
 /** Idle (silence) simulation of `durationS` from `initial`, on frames of `frameS`, with traces. */
 function idle(driver: DriverProfile, coil: CoilAtResonance, initial: ThermalState[] | undefined, durationS: number, ambientC: number, frameS: number): DriverSimulation {
-  const n = Math.max(1, Math.ceil(durationS / frameS));
-  const dt = durationS / n;
-  if (driver.scheme === 'pulse') {
-    return simulatePulses(driver, coil, { startS: new Float64Array(0), onS: new Float64Array(0) }, durationS, { initial, ambientC, traces: true, frameS: dt });
-  }
-  const h = driver.supplyVoltageV / 2;
-  return simulateRail(driver, coil, { frameS: dt, meanV: new Float64Array(n).fill(h), meanSquareV2: new Float64Array(n).fill(h * h) }, { initial, ambientC, traces: true });
+  return simulateSteady(driver, coil, { durationS, frameS, railV: driver.supplyVoltageV / 2, pulseOn: false, initial, ambientC });
 }
 
 /**
