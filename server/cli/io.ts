@@ -25,7 +25,6 @@ export const EXIT_BAD_INPUT = 2;
 
 /** A command: parses its own arguments, writes through io, returns an exit code. */
 export type Command = {
-  summary: string;
   usage: string;
   run(argv: string[], io: CliIo): Promise<number>;
 };

@@ -1,6 +1,6 @@
 import { isInputError } from '../../shared/errors.ts';
-import { EXIT_BAD_INPUT, EXIT_INTERNAL, processIo, type CliIo, type Command } from './io.ts';
-import { commands } from './commands/index.ts';
+import { EXIT_BAD_INPUT, EXIT_INTERNAL, processIo, type CliIo } from './io.ts';
+import { type CommandEntry, commands } from './commands/index.ts';
 
 const SAFETY_LINE =
   'Caution: resonant coils make high voltage and RF that can burn, injure or kill; follow local codes and licensed practice.';
@@ -19,16 +19,17 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
     io.out(helpText());
     return name ? 0 : EXIT_BAD_INPUT;
   }
-  const command: Command | undefined = commands[name];
-  if (!command) {
+  const entry: CommandEntry | undefined = commands[name];
+  if (!entry) {
     io.err(`coilcue: unknown command "${name}"; known: ${Object.keys(commands).join(', ')}\n`);
     return EXIT_BAD_INPUT;
   }
-  if (rest.includes('--help') || rest.includes('-h')) {
-    io.out(`${command.summary}\nUsage: ${command.usage}\n${SAFETY_LINE}\n`);
-    return 0;
-  }
   try {
+    const command = await entry.load();
+    if (rest.includes('--help') || rest.includes('-h')) {
+      io.out(`${entry.summary}\nUsage: ${command.usage}\n${SAFETY_LINE}\n`);
+      return 0;
+    }
     return await command.run(rest, io);
   } catch (e) {
     if (isInputError(e)) {

@@ -79,7 +79,7 @@ export interface ClipAnalysis {
 /** Stages of the channel part, in the order analyzeClip runs them. */
 export const CHANNEL_STAGES = ['levels', 'true peak', 'loudness', 'frames', 'histogram'] as const;
 /** Stages of the spectrum part, in the order analyzeClip runs them (after the channel part). */
-export const SPECTRUM_STAGES = ['spectrum', 'spectrogram', 'pitch'] as const;
+export const SPECTRUM_STAGES = ['spectrum', 'pitch'] as const;
 const STAGES = [...CHANNEL_STAGES, ...SPECTRUM_STAGES] as const;
 
 /** The options of {@link analyzeClip} with every default filled in and checked against the clip. */
@@ -163,7 +163,7 @@ export function analyzeChannelPart(
 /**
  * The spectrum part of the analysis: Welch PSD of the modulation source with its centroid, 95 %
  * roll-off, dominant frequency and band fractions, the display spectrogram and the YIN pitch track
- * (tasks.ts: spectrum, spectrogram, pitch). Pure and independent of the channel part; `onStage` is
+ * (tasks.ts: spectrum, pitch). Pure and independent of the channel part; `onStage` is
  * called with each stage's name (SPECTRUM_STAGES) as it starts.
  *
  * @example analyzeSpectrumPart(source, 44100, resolveAnalyzeSettings(clip)).dominantHz
@@ -176,11 +176,9 @@ export function analyzeSpectrumPart(
 ): SpectrumFigures {
   onStage?.('spectrum');
   const spectrum = runSourceTask('spectrum', source, sampleRate, s);
-  onStage?.('spectrogram');
-  const spectrogram = runSourceTask('spectrogram', source, sampleRate, s);
   onStage?.('pitch');
   const pitch = runSourceTask('pitch', source, sampleRate, s);
-  return { ...spectrum, spectrogram, pitch };
+  return { ...spectrum, pitch };
 }
 
 /**
@@ -207,7 +205,7 @@ export function combineAnalysis(clip: AudioClip, s: AnalyzeSettings, part: Chann
  * Analyses a clip (module comment): {@link analyzeChannelPart} then {@link analyzeSpectrumPart} on
  * the modulation source, in this thread. Throws RangeError for a clip with no channels or no
  * samples (the decoder rejects those with an InputError before this is reached), or channel
- * 'right' of a mono clip. `onProgress` gets (k/8, name of stage k) as each of the eight stages
+ * 'right' of a mono clip. `onProgress` gets (k/7, name of stage k) as each of the seven stages
  * starts, then (1, 'done').
  *
  * @example analyzeClip(synthDemoClip('harbour-lights')).loudness.integratedLufs // ≈ −16 LUFS

@@ -15,9 +15,8 @@ import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/leve
 import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
 import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
 import { bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
-import { type DisplaySpectrogram, displaySpectrogram } from '../dsp/spectrogram.ts';
+import { type DisplaySpectrogram, welchSpectrogram } from '../dsp/spectrogram.ts';
 import { type TruePeakReport, measureTruePeak } from '../dsp/true-peak.ts';
-import { welchPsd } from '../dsp/welch.ts';
 import { ampToDb } from '../units.ts';
 import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './analyze-clip.ts';
 
@@ -26,7 +25,7 @@ export const CHANNEL_TASKS = ['levels', 'true peak', 'loudness'] as const;
 export type ChannelTask = (typeof CHANNEL_TASKS)[number];
 
 /** Tasks that read only the modulation source. */
-export const SOURCE_TASKS = ['source levels', 'frames', 'histogram', 'spectrum', 'spectrogram', 'pitch'] as const;
+export const SOURCE_TASKS = ['source levels', 'frames', 'histogram', 'spectrum', 'pitch'] as const;
 export type SourceTask = (typeof SOURCE_TASKS)[number];
 
 export type AnalysisTask = ChannelTask | SourceTask;
@@ -41,9 +40,8 @@ export interface TaskOutputs {
   /** Frame statistics and the two envelopes built on them. */
   frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array };
   histogram: MagnitudeHistogram;
-  /** Welch PSD and the features read from it. */
-  spectrum: Omit<SpectrumFigures, 'spectrogram' | 'pitch'>;
-  spectrogram: DisplaySpectrogram;
+  /** Welch PSD, the features read from it, and the display spectrogram (from the same FFTs when the clip is long enough). */
+  spectrum: Omit<SpectrumFigures, 'pitch'>;
   pitch: PitchTrack;
 }
 
@@ -80,8 +78,9 @@ export function runChannelTask<T extends ChannelTask>(task: T, clip: AudioClip):
  * Runs one source task on the modulation source: its levels (measureLevels), frame statistics with
  * the peak and RMS envelopes, magnitude histogram, Welch spectrum with its features (Welch 1967),
  * display spectrogram, or YIN pitch track (de Cheveigné & Kawahara 2002). The choices analyzeClip
- * makes are here: a spectrogram of two FFT frames per column (plenty for a display, and it keeps
- * five minutes fast) and a pitch hop of 20 ms (melodic notes last ≥ ~50 ms) up to min(2 kHz, fs/4).
+ * makes are here: a spectrogram read off the Welch segments when the clip fills every column with
+ * them (≥ ~93 s at 44.1 kHz), else of two FFT frames of its own per column (welchSpectrogram), and a
+ * pitch hop of 20 ms (melodic notes last ≥ ~50 ms) up to min(1 kHz, fs/4).
  *
  * @param source modulation source samples, full scale ±1
  * @param sampleRate Hz
@@ -109,19 +108,17 @@ export function runSourceTask<T extends SourceTask>(
       out.histogram = magnitudeHistogram(source);
       break;
     case 'spectrum': {
-      const welch = welchPsd(source, sampleRate, { size: s.fftSize });
+      const { welch, spectrogram } = welchSpectrogram(source, sampleRate, { welchSize: s.fftSize, ownFramesPerColumn: 2 });
       out.spectrum = {
         welch,
         centroidHz: spectralCentroidHz(welch),
         rolloff95Hz: rolloffHz(welch, 0.95),
         dominantHz: dominantHz(welch),
         bands: bandEnergyFractions(welch, s.bands),
+        spectrogram,
       };
       break;
     }
-    case 'spectrogram':
-      out.spectrogram = displaySpectrogram(source, sampleRate, { maxFramesPerColumn: 2 });
-      break;
     case 'pitch':
       out.pitch = yinPitchTrack(source, sampleRate, { hopS: PITCH_HOP_S, maxHz: Math.min(PITCH_MAX_HZ, sampleRate / 4) });
       break;

@@ -190,6 +190,37 @@ export class RealFft {
   }
 
   /**
+   * Summed power of two real sequences' spectra, |A[k]|² + |B[k]|², k = 0…N/2, from one complex FFT
+   * of z = a + j·b: with A[k] = (Z[k] + conj Z[N−k])/2 and B[k] = (Z[k] − conj Z[N−k])/(2j)
+   * (Press et al., *Numerical Recipes*, 3rd ed., §12.3), |A|² + |B|² = (|Z[k]|² + |Z[N−k]|²)/2
+   * (the cross terms cancel), indices mod N. Averaged periodograms (Welch, spectrograms) need only
+   * this sum, so the two spectra are never separated.
+   *
+   * @param interleaved the pair as one complex sequence: a[0], b[0], a[1], b[1], … (2N values; the
+   *   caller writes it, windowed and zero-padded as it needs)
+   * @param out N/2 + 1 values (allocated when absent), unnormalised like {@link RealFft.powerSpectrum}
+   * @example f.pairedPower(z, p) // p[k] = powerSpectrum(a)[k] + powerSpectrum(b)[k]
+   */
+  pairedPower(interleaved: Float64Array, out: Float64Array = new Float64Array(this.bins)): Float64Array {
+    const n = this.size;
+    if (interleaved.length !== 2 * n) {
+      throw new RangeError(`RealFft.pairedPower: interleaved must hold 2·N = ${2 * n} values, got ${interleaved.length}`);
+    }
+    const o = this.outBuf;
+    this.full.transform(o, interleaved);
+    out[0] = o[0] * o[0] + o[1] * o[1];
+    for (let k = 1; k < this.bins; k++) {
+      const j = 2 * (n - k);
+      const zr = o[2 * k];
+      const zi = o[2 * k + 1];
+      const yr = o[j];
+      const yi = o[j + 1];
+      out[k] = 0.5 * (zr * zr + zi * zi + yr * yr + yi * yi);
+    }
+    return out;
+  }
+
+  /**
    * One-sided transforms of two real sequences with one complex FFT of size N ("FFT of two real
    * functions simultaneously", Press et al., *Numerical Recipes*, 3rd ed., §12.3): with z = a + j·b,
    * A[k] = (Z[k] + conj Z[N−k])/2 and B[k] = (Z[k] − conj Z[N−k])/(2j). Same results as two calls

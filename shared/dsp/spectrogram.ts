@@ -17,6 +17,7 @@
  */
 import { RealFft, isPowerOfTwo } from './fft.ts';
 import { hannWindow } from './window.ts';
+import { type WelchSpectrum, welchPsd } from './welch.ts';
 
 /** Options of {@link displaySpectrogram}; every field has a default. */
 export interface SpectrogramOptions {
@@ -100,11 +101,66 @@ export function bandMeans(
   return out;
 }
 
-function positiveInt(v: number, name: string): number {
+function positiveInt(v: number, name: string, fn: string): number {
   if (!Number.isInteger(v) || v < 1) {
-    throw new RangeError(`displaySpectrogram: ${name} must be an integer ≥ 1, got ${v}`);
+    throw new RangeError(`${fn}: ${name} must be an integer ≥ 1, got ${v}`);
   }
   return v;
+}
+
+/** The validated options every spectrogram shares: rows and their edges, requested columns, floor. */
+interface RowLayout {
+  rows: number;
+  requested: number;
+  edgesHz: Float64Array;
+  frequenciesHz: Float64Array;
+  floorPower: number;
+}
+
+function rowLayout(fn: string, n: number, sampleRate: number, opts: SpectrogramOptions): RowLayout {
+  if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
+    throw new RangeError(`${fn}: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+  }
+  if (n === 0) throw new RangeError(`${fn}: signal is empty`);
+  const rows = positiveInt(opts.rows ?? 128, 'opts.rows', fn);
+  const requested = positiveInt(opts.columns ?? 1000, 'opts.columns', fn);
+  const minHz = opts.minHz ?? 20;
+  const maxHz = opts.maxHz ?? Math.min(20000, sampleRate / 2);
+  if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 2)) {
+    throw new RangeError(`${fn}: need 0 < minHz < maxHz ≤ fs/2 = ${sampleRate / 2} Hz, got minHz ${minHz}, maxHz ${maxHz}`);
+  }
+  const edgesHz = new Float64Array(rows + 1);
+  const frequenciesHz = new Float64Array(rows);
+  const ratio = maxHz / minHz;
+  for (let r = 0; r <= rows; r++) edgesHz[r] = minHz * Math.pow(ratio, r / rows);
+  edgesHz[rows] = maxHz;
+  for (let r = 0; r < rows; r++) frequenciesHz[r] = Math.sqrt(edgesHz[r] * edgesHz[r + 1]);
+  return { rows, requested, edgesHz, frequenciesHz, floorPower: Math.pow(10, (opts.floorDb ?? -200) / 10) };
+}
+
+/**
+ * Writes column c of `db` from `acc`, the column's summed unnormalised periodograms |X[k]|²
+ * (k = 0…N/2, overwritten): scaled to a one-sided density averaged over `frames` (welch.ts),
+ * averaged into the rows (bandMeans), in dB floored at the layout's floor.
+ */
+function writeColumn(
+  acc: Float64Array,
+  frames: number,
+  sampleRate: number,
+  sumW2: number,
+  binHz: number,
+  layout: RowLayout,
+  means: Float64Array,
+  db: Float32Array,
+  c: number,
+): void {
+  const bins = acc.length;
+  const scale = 1 / (frames * sampleRate * sumW2);
+  for (let k = 0; k < bins; k++) acc[k] *= (k === 0 || k === bins - 1 ? 1 : 2) * scale;
+  bandMeans(acc, binHz, layout.edgesHz, means);
+  const { rows, floorPower } = layout;
+  const base = c * rows;
+  for (let r = 0; r < rows; r++) db[base + r] = 10 * Math.log10(Math.max(means[r], floorPower));
 }
 
 /**
@@ -112,7 +168,7 @@ function positiveInt(v: number, name: string): number {
  * PSD (FS²/Hz, welch.ts scaling) averaged into log-spaced rows, in dB (module comment for the method).
  *
  * Frames reach past the clip ends at the first and last columns; the missing samples count as zeros.
- * A column's frames go through the FFT in pairs (RealFft.forwardPair); their powers are added in
+ * A column's frames go through the FFT in pairs (RealFft.pairedPower); their powers are added in
  * frame order.
  *
  * @param signal samples, full scale ±1 (not empty)
@@ -129,64 +185,40 @@ export function displaySpectrogram(
   sampleRate: number,
   opts: SpectrogramOptions = {},
 ): DisplaySpectrogram {
-  if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
-    throw new RangeError(`displaySpectrogram: sampleRate must be a positive number of Hz, got ${sampleRate}`);
-  }
+  const fn = 'displaySpectrogram';
   const n = signal.length;
-  if (n === 0) throw new RangeError('displaySpectrogram: signal is empty');
+  const layout = rowLayout(fn, n, sampleRate, opts);
   const size = opts.size ?? 2048;
   if (!isPowerOfTwo(size) || size < 4) {
-    throw new RangeError(`displaySpectrogram: opts.size must be a power of two ≥ 4, got ${size}`);
+    throw new RangeError(`${fn}: opts.size must be a power of two ≥ 4, got ${size}`);
   }
-  const rows = positiveInt(opts.rows ?? 128, 'opts.rows');
-  const requested = positiveInt(opts.columns ?? 1000, 'opts.columns');
-  const maxFrames = positiveInt(opts.maxFramesPerColumn ?? 8, 'opts.maxFramesPerColumn');
-  const minHz = opts.minHz ?? 20;
-  const maxHz = opts.maxHz ?? Math.min(20000, sampleRate / 2);
-  if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 2)) {
-    throw new RangeError(
-      `displaySpectrogram: need 0 < minHz < maxHz ≤ fs/2 = ${sampleRate / 2} Hz, got minHz ${minHz}, maxHz ${maxHz}`,
-    );
-  }
-  const floorDb = opts.floorDb ?? -200;
-  const floorPower = Math.pow(10, floorDb / 10);
+  const maxFrames = positiveInt(opts.maxFramesPerColumn ?? 8, 'opts.maxFramesPerColumn', fn);
+  const { rows, requested, edgesHz, frequenciesHz } = layout;
 
   const columns = Math.min(requested, Math.max(1, Math.ceil(n / (size / 4))));
   const span = n / columns;
   const framesPerColumn = Math.min(maxFrames, Math.max(1, Math.ceil(span / (size / 2))));
-
-  const edgesHz = new Float64Array(rows + 1);
-  const frequenciesHz = new Float64Array(rows);
-  const ratio = maxHz / minHz;
-  for (let r = 0; r <= rows; r++) edgesHz[r] = minHz * Math.pow(ratio, r / rows);
-  edgesHz[rows] = maxHz;
-  for (let r = 0; r < rows; r++) frequenciesHz[r] = Math.sqrt(edgesHz[r] * edgesHz[r + 1]);
 
   const fft = new RealFft(size);
   const bins = fft.bins;
   const w = hannWindow(size);
   let sumW2 = 0;
   for (let i = 0; i < size; i++) sumW2 += w[i] * w[i];
-  const frameA = new Float64Array(size);
-  const frameB = new Float64Array(size);
+  const z = new Float64Array(2 * size);
+  const frame = new Float64Array(size);
   const power = new Float64Array(bins);
-  const aRe = new Float64Array(bins);
-  const aIm = new Float64Array(bins);
-  const bRe = new Float64Array(bins);
-  const bIm = new Float64Array(bins);
   const acc = new Float64Array(bins);
   const means = new Float64Array(rows);
   const binHz = sampleRate / size;
-  const scale = 1 / (framesPerColumn * sampleRate * sumW2);
 
-  /** Frame f of column c, Hann-windowed, into out (zeros where it reaches past the clip's ends). */
-  const windowFrame = (c: number, f: number, out: Float64Array) => {
+  /** Frame f of column c, Hann-windowed, into out[offset + stride·i] (zeros where it reaches past the clip's ends). */
+  const windowFrame = (c: number, f: number, out: Float64Array, offset: number, stride: number) => {
     const centre = (c + (f + 0.5) / framesPerColumn) * span;
     const start = Math.round(centre - size / 2);
-    const i0 = Math.max(0, -start);
-    const i1 = Math.min(size, n - start);
-    out.fill(0);
-    for (let i = i0; i < i1; i++) out[i] = signal[start + i] * w[i];
+    for (let i = 0; i < size; i++) {
+      const j = start + i;
+      out[offset + stride * i] = j >= 0 && j < n ? signal[j] * w[i] : 0;
+    }
   };
 
   const timesS = new Float64Array(columns);
@@ -194,26 +226,114 @@ export function displaySpectrogram(
   for (let c = 0; c < columns; c++) {
     timesS[c] = ((c + 0.5) * span) / sampleRate;
     acc.fill(0);
-    // frames two at a time through one complex FFT (RealFft.forwardPair), an odd last one alone
+    // frames two at a time through one complex FFT (RealFft.pairedPower), an odd last one alone
     let f = 0;
     for (; f + 1 < framesPerColumn; f += 2) {
-      windowFrame(c, f, frameA);
-      windowFrame(c, f + 1, frameB);
-      fft.forwardPair(frameA, frameB, aRe, aIm, bRe, bIm);
-      for (let k = 0; k < bins; k++) {
-        acc[k] += aRe[k] * aRe[k] + aIm[k] * aIm[k];
-        acc[k] += bRe[k] * bRe[k] + bIm[k] * bIm[k];
-      }
-    }
-    if (f < framesPerColumn) {
-      windowFrame(c, f, frameA);
-      fft.powerSpectrum(frameA, power);
+      windowFrame(c, f, z, 0, 2);
+      windowFrame(c, f + 1, z, 1, 2);
+      fft.pairedPower(z, power);
       for (let k = 0; k < bins; k++) acc[k] += power[k];
     }
-    for (let k = 0; k < bins; k++) acc[k] *= (k === 0 || k === bins - 1 ? 1 : 2) * scale;
-    bandMeans(acc, binHz, edgesHz, means);
-    const base = c * rows;
-    for (let r = 0; r < rows; r++) db[base + r] = 10 * Math.log10(Math.max(means[r], floorPower));
+    if (f < framesPerColumn) {
+      windowFrame(c, f, frame, 0, 1);
+      fft.powerSpectrum(frame, power);
+      for (let k = 0; k < bins; k++) acc[k] += power[k];
+    }
+    writeColumn(acc, framesPerColumn, sampleRate, sumW2, binHz, layout, means, db, c);
   }
   return { timesS, frequenciesHz, edgesHz, db, columns, rows, framesPerColumn, size };
+}
+
+/** Options of {@link welchSpectrogram}: the spectrogram's, less its own frame settings, and Welch's size. */
+export interface WelchSpectrogramOptions extends Omit<SpectrogramOptions, 'size' | 'maxFramesPerColumn'> {
+  /** Welch segment and FFT size, a power of two ≥ 4 (default 4096). */
+  welchSize?: number;
+  /** Frames per column for a clip too short to share (displaySpectrogram's maxFramesPerColumn; default 2). */
+  ownFramesPerColumn?: number;
+}
+
+/**
+ * Welch's spectrum and a display spectrogram from the same FFTs, when the clip is long enough: the
+ * spectrogram's column c averages the Welch segments whose pair (the two segments that go through
+ * one FFT, welch.ts) is centred in c's share of the clip, n/columns samples, with the density
+ * scaling and rows of {@link displaySpectrogram}. Its frames are then Welch's: `welchSize` long,
+ * half overlapping, every sample covered. This needs every column to receive a pair, about
+ * columns × welchSize samples (93 s at 44.1 kHz for 1000 columns of 4096); a shorter clip gets
+ * `displaySpectrogram(signal, sampleRate, { …opts, maxFramesPerColumn: ownFramesPerColumn })` beside
+ * welchPsd instead. Either way the Welch spectrum is exactly welchPsd's.
+ *
+ * Columns may average different numbers of frames (a few more where a pair's centre falls just
+ * inside); `framesPerColumn` reports the fewest.
+ *
+ * @param signal samples, full scale ±1 (not empty)
+ * @param sampleRate Hz
+ * @throws RangeError as welchPsd and displaySpectrogram do
+ * @example const { welch, spectrogram } = welchSpectrogram(mix, 44100); // 5 min: 1000 columns of 6–7 frames of 4096
+ */
+export function welchSpectrogram(
+  signal: Float32Array,
+  sampleRate: number,
+  opts: WelchSpectrogramOptions = {},
+): { welch: WelchSpectrum; spectrogram: DisplaySpectrogram } {
+  const fn = 'welchSpectrogram';
+  const n = signal.length;
+  const size = opts.welchSize ?? 4096;
+  const layout = rowLayout(fn, n, sampleRate, opts);
+  if (!isPowerOfTwo(size) || size < 4) throw new RangeError(`${fn}: opts.welchSize must be a power of two ≥ 4, got ${size}`);
+  const { rows, requested: columns } = layout;
+  const hop = size / 2;
+  const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
+  const span = n / columns;
+  // The column of the group of segments first…first+count−1 (as welchPsd hands them over), by its centre.
+  const columnOf = (first: number, count: number) => Math.min(columns - 1, Math.floor((first * hop + (size + (count - 1) * hop) / 2) / span));
+  // Shared FFTs only if every column gets a group: groups' centres rise by `size`, so none may be
+  // skipped, and the first and last columns must be reached.
+  const groups = Math.ceil(segments / 2);
+  const lastCount = segments % 2 === 0 ? 2 : 1;
+  const shareable =
+    n >= 2 * size &&
+    size <= span &&
+    columnOf(0, segments > 1 ? 2 : 1) === 0 &&
+    columnOf(2 * (groups - 1), lastCount) === columns - 1;
+  if (!shareable) {
+    return {
+      welch: welchPsd(signal, sampleRate, { size }),
+      spectrogram: displaySpectrogram(signal, sampleRate, { ...opts, maxFramesPerColumn: opts.ownFramesPerColumn ?? 2 }),
+    };
+  }
+
+  const bins = size / 2 + 1;
+  const w = hannWindow(size);
+  let sumW2 = 0;
+  for (let i = 0; i < size; i++) sumW2 += w[i] * w[i];
+  const binHz = sampleRate / size;
+  const acc = new Float64Array(bins);
+  const means = new Float64Array(rows);
+  const timesS = new Float64Array(columns);
+  const db = new Float32Array(columns * rows);
+  let column = 0;
+  let frames = 0;
+  let fewest = Infinity;
+  const finish = () => {
+    writeColumn(acc, frames, sampleRate, sumW2, binHz, layout, means, db, column);
+    timesS[column] = ((column + 0.5) * span) / sampleRate;
+    fewest = Math.min(fewest, frames);
+    acc.fill(0);
+    frames = 0;
+  };
+  const welch = welchPsd(signal, sampleRate, {
+    size,
+    onSegments: (first, count, power) => {
+      const c = columnOf(first, count);
+      if (c !== column) {
+        finish();
+        column = c;
+      }
+      for (let k = 0; k < bins; k++) acc[k] += power[k];
+      frames += count;
+    },
+  });
+  finish();
+  const { edgesHz, frequenciesHz } = layout;
+  return { welch, spectrogram: { timesS, frequenciesHz, edgesHz, db, columns, rows, framesPerColumn: fewest, size } };
 }

@@ -30,6 +30,14 @@ export interface PowerSpectrum {
   binHz: number;
 }
 
+/** Options of {@link welchPsd}. */
+export interface WelchOptions {
+  /** FFT size, a power of two ≥ 4 (default 4096). */
+  size?: number;
+  /** Sees each pair (or lone segment) of periodograms as it is made; see {@link welchPsd}. */
+  onSegments?: (first: number, count: 1 | 2, power: Float64Array) => void;
+}
+
 /** Welch's estimate: the spectrum plus how it was made. */
 export interface WelchSpectrum extends PowerSpectrum {
   /** Number of segments averaged (1 when the signal is shorter than one segment). */
@@ -41,8 +49,10 @@ export interface WelchSpectrum extends PowerSpectrum {
 /**
  * One-sided PSD by Welch's method: periodic Hann segments of `size` samples with 50 % overlap
  * (hop size/2), periodograms averaged, density scaling as in the module comment (Welch 1967).
- * Segments go through the FFT in pairs (RealFft.forwardPair, two real transforms in one complex
- * one); their periodograms are added in segment order.
+ * Segments go through the FFT in pairs (RealFft.pairedPower: two real segments as one complex
+ * sequence, their summed periodogram read off its transform); the sums are added in segment order.
+ * `opts.onSegments` sees each pair's (or lone segment's) summed periodogram as it is made, so a
+ * caller can group segments in time (welchSpectrogram in spectrogram.ts) without another FFT.
  *
  * Segments start at 0, size/2, size, …; trailing samples that do not fill a whole segment are not
  * used (at most size/2 − 1 of them, as scipy.signal.welch does). A signal shorter than `size` (but
@@ -54,6 +64,8 @@ export interface WelchSpectrum extends PowerSpectrum {
  * @param signal samples, full scale ±1
  * @param sampleRate in Hz (> 0)
  * @param opts.size FFT size, a power of two ≥ 4 (default 4096: 10.8 Hz bins at 44.1 kHz)
+ * @param opts.onSegments called for segments first…first+count−1 (count 1 or 2, in order) with their
+ *   summed unnormalised periodogram Σ|X[k]|², k = 0…N/2 (the array is reused: copy what you keep)
  * @returns frequencyHz, psd (FS²/Hz), binHz, segments, size
  * @throws RangeError for an empty signal, a bad sample rate or size
  * @example
@@ -63,7 +75,7 @@ export interface WelchSpectrum extends PowerSpectrum {
 export function welchPsd(
   signal: Float32Array,
   sampleRate: number,
-  opts: { size?: number } = {},
+  opts: WelchOptions = {},
 ): WelchSpectrum {
   const size = opts.size ?? 4096;
   if (!isPowerOfTwo(size) || size < 4) {
@@ -78,6 +90,8 @@ export function welchPsd(
   const fft = new RealFft(size);
   const bins = fft.bins;
   const acc = new Float64Array(bins);
+  const power = new Float64Array(bins);
+  const onSegments = opts.onSegments;
 
   const segLen = Math.min(n, size);
   const w = segLen >= 4 ? hannWindow(segLen) : new Float64Array(segLen).fill(1);
@@ -86,28 +100,27 @@ export function welchPsd(
 
   const hop = size / 2;
   const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
-  // Segments go through the FFT two at a time (RealFft.forwardPair: one complex FFT for two real
-  // segments); an odd last one, or a lone short signal, alone. seg[segLen…] stays 0: zero padding.
-  const segA = new Float64Array(size);
-  const segB = new Float64Array(size);
-  const aRe = new Float64Array(bins);
-  const aIm = new Float64Array(bins);
-  const bRe = new Float64Array(bins);
-  const bIm = new Float64Array(bins);
+  // Segments go through the FFT two at a time: segment s windowed into the real parts, s + 1 (which
+  // starts hop samples later) into the imaginary parts. An odd last one, or a lone short signal
+  // (zero-padded to size), goes alone.
+  const z = new Float64Array(2 * size);
   let s = 0;
   for (; s + 1 < segments; s += 2) {
-    windowInto(signal, s * hop, w, segLen, segA);
-    windowInto(signal, (s + 1) * hop, w, segLen, segB);
-    fft.forwardPair(segA, segB, aRe, aIm, bRe, bIm);
-    for (let k = 0; k < bins; k++) {
-      acc[k] += aRe[k] * aRe[k] + aIm[k] * aIm[k];
-      acc[k] += bRe[k] * bRe[k] + bIm[k] * bIm[k];
+    const start = s * hop;
+    for (let i = 0; i < size; i++) {
+      z[2 * i] = signal[start + i] * w[i];
+      z[2 * i + 1] = signal[start + hop + i] * w[i];
     }
+    fft.pairedPower(z, power);
+    for (let k = 0; k < bins; k++) acc[k] += power[k];
+    onSegments?.(s, 2, power);
   }
   if (s < segments) {
-    windowInto(signal, s * hop, w, segLen, segA);
-    fft.powerSpectrum(segA, aRe);
-    for (let k = 0; k < bins; k++) acc[k] += aRe[k];
+    const seg = new Float64Array(size);
+    for (let i = 0; i < segLen; i++) seg[i] = signal[s * hop + i] * w[i];
+    fft.powerSpectrum(seg, power);
+    for (let k = 0; k < bins; k++) acc[k] += power[k];
+    onSegments?.(s, 1, power);
   }
 
   const binHz = sampleRate / size;
@@ -120,9 +133,4 @@ export function welchPsd(
     frequencyHz[k] = k * binHz;
   }
   return { frequencyHz, psd, binHz, segments, size };
-}
-
-/** out[i] = x[start + i]·w[i] for i < len (the windowed segment; out beyond len is left alone). */
-function windowInto(x: Float32Array, start: number, w: Float64Array, len: number, out: Float64Array): void {
-  for (let i = 0; i < len; i++) out[i] = x[start + i] * w[i];
 }

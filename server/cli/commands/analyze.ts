@@ -78,7 +78,6 @@ export function formatAnalysis(file: string, s: AnalysisSummary): string {
 }
 
 export const analyzeCommand: Command = {
-  summary: 'measure a clip: levels, true peak, loudness, spectrum, pitch',
   usage: USAGE,
   async run(argv, io) {
     const { values, positionals } = parseCommandArgs(

@@ -76,7 +76,6 @@ export function formatCoilReport(r: CoilReport): string {
 
 /** `coilcue coil`: analyses a coil profile and prints a table (or JSON with --json). */
 export const coilCommand: Command = {
-  summary: 'model a coil: inductance, capacitance, resonance, Q, coupling, voltage bound',
   usage: USAGE,
   async run(argv: string[], io: CliIo): Promise<number> {
     const { values, positionals } = parseCommandArgs(

@@ -22,7 +22,6 @@ const DRIVER_FILES = ['driver-linear.json', 'driver-buck.json', 'driver-pulse.js
  * and runs the analysis, the coil model and the planner on it, section by section.
  */
 export const demoCommand: Command = {
-  summary: 'write the built-in demo scenario to a folder and run every step on it',
   usage: USAGE,
   async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, { out: { type: 'string' } }, USAGE);

@@ -1,15 +1,56 @@
 import type { Command } from '../io.ts';
-import { analyzeCommand } from './analyze.ts';
-import { coilCommand } from './coil.ts';
-import { demoCommand } from './demo.ts';
-import { planCommand } from './plan.ts';
-import { previewCommand, renderCommand } from './render.ts';
+
+/**
+ * A command as the command line lists it: its one-line summary, and its module, loaded only when the
+ * command runs. Loading every command up front (the renderer's Web Audio package, the planner, the
+ * coil model) took ~1.2 s and ~50 MiB before any work began, measured with `coilcue --help`.
+ */
+export interface CommandEntry {
+  summary: string;
+  load(): Promise<Command>;
+}
+
+/**
+ * Loads a command module and takes its command: by import() (Vitest, `node --import tsx`), or, where
+ * Node refuses to import TypeScript (ERR_UNKNOWN_FILE_EXTENSION: Node 20 under the executable,
+ * bin/coilcue.js, whose modules are CommonJS compiled by tsx's hook), by that module's `require`,
+ * which the hook compiles.
+ */
+function lazy<M>(viaRequire: () => M, viaImport: () => Promise<M>, take: (m: M) => Command): () => Promise<Command> {
+  return async () => {
+    try {
+      return take(await viaImport());
+    } catch (e) {
+      if ((e as { code?: unknown }).code !== 'ERR_UNKNOWN_FILE_EXTENSION' || typeof require !== 'function') throw e;
+      return take(viaRequire());
+    }
+  };
+}
 
 /** Every command of the command line, by the name typed after `coilcue`. */
-export const commands: Record<string, Command> = {
-  analyze: analyzeCommand,
-  coil: coilCommand,
-  plan: planCommand,
-  demo: demoCommand,
-  render: renderCommand, preview: previewCommand,
+export const commands: Record<string, CommandEntry> = {
+  analyze: {
+    summary: 'measure a clip: levels, true peak, loudness, spectrum, pitch',
+    load: lazy(() => require('./analyze.ts') as typeof import('./analyze.ts'), () => import('./analyze.ts'), (m) => m.analyzeCommand),
+  },
+  coil: {
+    summary: 'model a coil: inductance, capacitance, resonance, Q, coupling, voltage bound',
+    load: lazy(() => require('./coil.ts') as typeof import('./coil.ts'), () => import('./coil.ts'), (m) => m.coilCommand),
+  },
+  plan: {
+    summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
+    load: lazy(() => require('./plan.ts') as typeof import('./plan.ts'), () => import('./plan.ts'), (m) => m.planCommand),
+  },
+  demo: {
+    summary: 'write the built-in demo scenario to a folder and run every step on it',
+    load: lazy(() => require('./demo.ts') as typeof import('./demo.ts'), () => import('./demo.ts'), (m) => m.demoCommand),
+  },
+  render: {
+    summary: 'write the coil-ready modulation WAV (gain, pre-emphasis, limiter) and re-check every limit on it',
+    load: lazy(() => require('./render.ts') as typeof import('./render.ts'), () => import('./render.ts'), (m) => m.renderCommand),
+  },
+  preview: {
+    summary: 'hear and see beforehand what the coil makes of a clip: arc-sound WAV and modulation preview',
+    load: lazy(() => require('./preview.ts') as typeof import('./preview.ts'), () => import('./preview.ts'), (m) => m.previewCommand),
+  },
 };

@@ -139,7 +139,6 @@ function settingsFrom(values: Record<string, string | boolean | undefined>, driv
 }
 
 export const planCommand: Command = {
-  summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
   usage: USAGE,
   async run(argv, io) {
     const { values, positionals } = parseCommandArgs(

@@ -77,7 +77,6 @@ export function formatPreview(s: PreviewSummary): string {
 
 /** `coilcue preview`: what the coil will make of a clip — the arc sound as a WAV, the modulation in figures. */
 export const previewCommand: Command = {
-  summary: 'hear and see beforehand what the coil makes of a clip: arc-sound WAV and modulation preview',
   usage: USAGE,
   async run(argv: string[], io: CliIo): Promise<number> {
     const { values, positionals } = parseCommandArgs(

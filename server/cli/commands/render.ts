@@ -15,7 +15,6 @@ import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 import { alignRows } from '../format.ts';
 
 // Registered together with `preview` from one import line in ./index.ts.
-export { previewCommand } from './preview.ts';
 
 const USAGE =
   'coilcue render --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--format s16|s24|f32] [--channel mix|left|right] [--pre-emphasis-db G] [--pre-emphasis-hz F] [--ceiling-dbfs C] [--json]';
@@ -139,7 +138,6 @@ export function formatRender(s: RenderSummary): string {
 
 /** `coilcue render`: the coil-ready WAV of a clip, limited to the ceiling and checked in a closed loop. */
 export const renderCommand: Command = {
-  summary: 'write the coil-ready modulation WAV (gain, pre-emphasis, limiter) and re-check every limit on it',
   usage: USAGE,
   async run(argv: string[], io: CliIo): Promise<number> {
     const { values, positionals } = parseCommandArgs(

@@ -119,6 +119,36 @@ describe('RealFft.forwardPair', () => {
   });
 });
 
+describe('RealFft.pairedPower', () => {
+  it('equals |A|² + |B|² of the fft-js oracle (1e-9 relative), for every bin including 0 and N/2', () => {
+    for (const n of [4, 64, 1024]) {
+      const a = noise(n, 31 + n);
+      const b = noise(n, 37 + n);
+      const z = new Float64Array(2 * n);
+      for (let i = 0; i < n; i++) {
+        z[2 * i] = a[i];
+        z[2 * i + 1] = b[i];
+      }
+      const p = new RealFft(n).pairedPower(z);
+      const ra = oracle.fft(a);
+      const rb = oracle.fft(b);
+      let scale = 0;
+      let worst = 0;
+      for (let k = 0; k <= n / 2; k++) {
+        const ref = ra[k][0] ** 2 + ra[k][1] ** 2 + rb[k][0] ** 2 + rb[k][1] ** 2;
+        scale = Math.max(scale, ref);
+        worst = Math.max(worst, Math.abs(p[k] - ref));
+      }
+      expect(p.length).toBe(n / 2 + 1);
+      expect(worst / scale).toBeLessThan(1e-9);
+    }
+  });
+
+  it('rejects an input that is not 2·N values long', () => {
+    expect(() => new RealFft(8).pairedPower(new Float64Array(8))).toThrow(/2·N = 16/);
+  });
+});
+
 describe('RealFft: a sine and Parseval', () => {
   // DFT of a sinusoid (Oppenheim & Schafer, Discrete-Time Signal Processing, 3rd ed., ch. 8)
   it('a sine on bin 37 of 1024 lands in bin 37 with |X| = A·N/2', () => {

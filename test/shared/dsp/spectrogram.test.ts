@@ -1,5 +1,22 @@
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import { bandMeans, displaySpectrogram } from '../../../shared/dsp/spectrogram.ts';
+import { bandMeans, displaySpectrogram, welchSpectrogram } from '../../../shared/dsp/spectrogram.ts';
+import { welchPsd } from '../../../shared/dsp/welch.ts';
+
+// fft-js (devDependency): the independent FFT the reference periodograms below are computed with.
+const require = createRequire(import.meta.url);
+const oracle = require('fft-js') as { fft(x: number[]): [number, number][] };
+
+/** Deterministic uniform noise in [−amp, amp) (a 32-bit LCG, Numerical Recipes constants). */
+function noise(n: number, seed: number, amp = 1): Float32Array {
+  let st = seed >>> 0;
+  const out = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    st = (Math.imul(st, 1664525) + 1013904223) >>> 0;
+    out[i] = amp * (st / 2 ** 31 - 1);
+  }
+  return out;
+}
 
 function sine(n: number, fs: number, hz: number, amp: number, phase = 0): Float32Array {
   const out = new Float32Array(n);
@@ -157,5 +174,72 @@ describe('displaySpectrogram', () => {
     expect(() => displaySpectrogram(new Float32Array(10), fs, { minHz: 500, maxHz: 100 })).toThrow(/minHz/);
     expect(() => displaySpectrogram(new Float32Array(10), fs, { maxHz: 30000 })).toThrow(/fs\/2/);
     expect(() => displaySpectrogram(new Float32Array(10), -1)).toThrow(/sampleRate/);
+  });
+});
+
+describe('welchSpectrogram: the spectrogram from Welch\'s own segments', () => {
+  it('each column averages the periodograms of the segment pairs centred in it (fft-js oracle, welch.ts scaling)', () => {
+    // Small enough to recompute every periodogram with the independent FFT: 64-point segments at
+    // 50 % overlap (Welch 1967), periodic Hann w[i] = 0.5 − 0.5·cos(2πi/N) (Harris 1978), density
+    // scaling as in welch.ts, rows by bandMeans (tested above).
+    const fs = 8000;
+    const size = 64;
+    const columns = 10;
+    const x = noise(size * columns * 2 + 37, 99, 0.3);
+    const { welch, spectrogram: sp } = welchSpectrogram(x, fs, { welchSize: size, columns, rows: 12, minHz: 100 });
+    expect(sp.columns).toBe(columns);
+    expect(sp.size).toBe(size);
+    const hop = size / 2;
+    const segments = Math.floor((x.length - size) / hop) + 1; // 40 here: 20 pairs
+    expect(welch.segments).toBe(segments);
+    const span = x.length / columns;
+    const w = Array.from({ length: size }, (_, i) => 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / size));
+    const sumW2 = w.reduce((a, v) => a + v * v, 0);
+    const bins = size / 2 + 1;
+    const acc = Array.from({ length: columns }, () => new Float64Array(bins));
+    const count = new Array<number>(columns).fill(0);
+    for (let seg = 0; seg < segments; seg++) {
+      const pairCentre = (seg - (seg % 2)) * hop + (size + hop) / 2;
+      const c = Math.min(columns - 1, Math.floor(pairCentre / span));
+      const X = oracle.fft(Array.from({ length: size }, (_, i) => x[seg * hop + i] * w[i]));
+      for (let k = 0; k < bins; k++) acc[c][k] += X[k][0] ** 2 + X[k][1] ** 2;
+      count[c]++;
+    }
+    let fewest = Infinity;
+    for (let c = 0; c < columns; c++) {
+      expect(count[c]).toBeGreaterThan(0);
+      fewest = Math.min(fewest, count[c]);
+      const psd = acc[c].map((v, k) => ((k === 0 || k === bins - 1 ? 1 : 2) * v) / (count[c] * fs * sumW2));
+      const means = bandMeans(psd, fs / size, sp.edgesHz);
+      for (let r = 0; r < sp.rows; r++) expect(sp.db[c * sp.rows + r]).toBeCloseTo(10 * Math.log10(means[r]), 4);
+      expect(sp.timesS[c]).toBeCloseTo(((c + 0.5) * span) / fs, 12);
+    }
+    expect(sp.framesPerColumn).toBe(fewest);
+  });
+
+  it('gives exactly welchPsd\'s spectrum, and follows a 12 dB step in level in time', () => {
+    const fs = 8000;
+    const n = 50 * 4096 * 2;
+    const x = noise(n, 7, 0.1);
+    for (let i = n / 2; i < n; i++) x[i] *= 4; // +12.04 dB from the middle on
+    const { welch, spectrogram: sp } = welchSpectrogram(x, fs, { columns: 50 });
+    const ref = welchPsd(x, fs);
+    expect(Array.from(welch.psd)).toEqual(Array.from(ref.psd));
+    expect(sp.size).toBe(4096); // the Welch segments were shared
+    // Parseval per column (welch.ts convention): uniform noise on ±a has mean square a²/3.
+    const quiet = 10 * Math.log10(columnPower(sp, 10));
+    const loud = 10 * Math.log10(columnPower(sp, 40));
+    expect(Math.abs(quiet - 10 * Math.log10(0.01 / 3))).toBeLessThan(0.5);
+    expect(Math.abs(loud - quiet - 20 * Math.log10(4))).toBeLessThan(0.5);
+  });
+
+  it('a clip too short to fill every column with pairs gets its own frames (displaySpectrogram, 2 per column)', () => {
+    const fs = 44100;
+    const x = sine(fs * 5, fs, 440, 0.2);
+    const { welch, spectrogram } = welchSpectrogram(x, fs);
+    expect(spectrogram).toEqual(displaySpectrogram(x, fs, { maxFramesPerColumn: 2 }));
+    expect(welch).toEqual(welchPsd(x, fs));
+    expect(() => welchSpectrogram(x, fs, { welchSize: 1000 })).toThrow(/opts.welchSize/);
+    expect(() => welchSpectrogram(new Float32Array(0), fs)).toThrow(/empty/);
   });
 });
