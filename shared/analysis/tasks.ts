@@ -8,8 +8,8 @@
  * Float32Array, which is what a worker thread gets (in shared memory).
  */
 import type { AudioClip } from '../audio/clip.ts';
-import { peakEnvelopeFrames, rmsEnvelope } from '../dsp/envelope.ts';
-import { type FrameStats, computeFrameStats } from '../dsp/frame-stats.ts';
+import { frameStatsWithPeakEnvelope, rmsEnvelope } from '../dsp/envelope.ts';
+import type { FrameStats } from '../dsp/frame-stats.ts';
 import { type MagnitudeHistogram, magnitudeHistogram } from '../dsp/histogram.ts';
 import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/level.ts';
 import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
@@ -98,8 +98,7 @@ export function runSourceTask<T extends SourceTask>(
       out['source levels'] = measureLevels([source], { sampleRate }).overall;
       break;
     case 'frames': {
-      const frames = computeFrameStats(source, sampleRate, { frameS: s.frameS });
-      const peak = peakEnvelopeFrames(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
+      const { frames, peak } = frameStatsWithPeakEnvelope(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
       const rms = rmsEnvelope(frames, { windowS: s.rmsWindowS });
       out.frames = { frames, peak, rms };
       break;

@@ -9,6 +9,10 @@
  * samples apart (every sample covered); beyond about 6.2 minutes (8 × 2048 samples per column) the
  * frames leave gaps. Short clips get one frame per column and fewer columns (a quarter frame apart).
  *
+ * welchSpectrogram makes the same display from Welch's own segments (welch.ts) when the clip is long
+ * enough to give every column some of them (about 93 s at 44.1 kHz for 1000 columns of 4096): the
+ * spectrum and the display then share every FFT, and the display covers every sample.
+ *
  * Rows: `rows` bands with log-spaced edges eᵣ = minHz·(maxHz/minHz)^(r/rows). A row's value is the
  * mean of the PSD over [eᵣ, eᵣ₊₁] with the PSD taken as piecewise linear between bin centres, i.e.
  * (1/(eᵣ₊₁ − eᵣ))·∫ psd(f) df. Wide rows thus average their bins (trapezoid weights); rows narrower

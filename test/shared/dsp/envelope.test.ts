@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { createPeakFollower, onePoleCoefficient, peakEnvelopeFrames } from '../../../shared/dsp/envelope.ts';
-import { frameCount, frameStart } from '../../../shared/dsp/frame-stats.ts';
+import { createPeakFollower, frameStatsWithPeakEnvelope, onePoleCoefficient, peakEnvelopeFrames } from '../../../shared/dsp/envelope.ts';
+import { computeFrameStats, frameCount, frameStart } from '../../../shared/dsp/frame-stats.ts';
 
 const FS = 48000;
 
@@ -130,5 +130,42 @@ describe('peakEnvelopeFrames', () => {
     expect(env.buffer).toBe(out.buffer);
     expect(out[2]).toBeCloseTo(0.5, 15);
     expect(() => peakEnvelopeFrames(new Float32Array(1000), FS, { attackS: 0, releaseS: 0, out })).toThrow(/out/);
+  });
+});
+
+describe('frameStatsWithPeakEnvelope', () => {
+  /** Deterministic uniform noise in [−amp, amp) (a 32-bit LCG, Numerical Recipes constants). */
+  function noise(n: number, seed: number, amp: number): Float32Array {
+    let st = seed >>> 0;
+    const out = new Float32Array(n);
+    for (let i = 0; i < n; i++) {
+      st = (Math.imul(st, 1664525) + 1013904223) >>> 0;
+      out[i] = amp * (st / 2 ** 31 - 1);
+    }
+    return out;
+  }
+
+  it('equals computeFrameStats and peakEnvelopeFrames exactly, on any frame layout and length', () => {
+    const bursts = noise(44100, 5, 0.8).map((v, i) => (Math.floor(i / 3000) % 2 === 0 ? v : v * 0.01));
+    const cases: [Float32Array, number, number][] = [
+      [bursts, 44100, 0.001],
+      [bursts.subarray(0, 1003), 44100, 0.0025],
+      [noise(7, 9, 1), 48000, 0.001],
+      [Float32Array.of(0.5), 8000, 0.001],
+      [new Float32Array(480), 48000, 0.001],
+    ];
+    for (const [x, fs, frameS] of cases) {
+      const opts = { attackS: 0.001, releaseS: 0.05, frameS };
+      const { frames, peak } = frameStatsWithPeakEnvelope(x, fs, opts);
+      expect(frames).toEqual(computeFrameStats(x, fs, { frameS }));
+      expect(Array.from(peak)).toEqual(Array.from(peakEnvelopeFrames(x, fs, opts)));
+    }
+  });
+
+  it('rejects NaN samples naming the frame, and bad follower options', () => {
+    const x = new Float32Array(441);
+    x[200] = Number.NaN;
+    expect(() => frameStatsWithPeakEnvelope(x, 44100, { attackS: 0.001, releaseS: 0.05 })).toThrow(/NaN or infinite sample in frame 4/);
+    expect(() => frameStatsWithPeakEnvelope(new Float32Array(10), 44100, { attackS: -1, releaseS: 0.05 })).toThrow(/attackS/);
   });
 });
