@@ -103,9 +103,128 @@ function levelsFrom(
 }
 
 /**
+ * Sums of one window x[start, end): out[0] = Σx, out[1] = Σx², out[2] = max|x| (float64, added in
+ * sample order from 0, so the sums equal a plain loop's bit for bit). NaN samples leave max|x|
+ * unchanged and make the sums NaN.
+ * Kernel: trusts its inputs (0 ≤ start ≤ end ≤ x.length, out holds 3 values).
+ */
+function windowSums(x: Float32Array, start: number, end: number, out: Float64Array): void {
+  let s = 0;
+  let s2 = 0;
+  let peak = 0;
+  for (let i = start; i < end; i++) {
+    const v = x[i];
+    s += v;
+    s2 += v * v;
+    const a = Math.abs(v);
+    if (a > peak) peak = a;
+  }
+  out[0] = s;
+  out[1] = s2;
+  out[2] = peak;
+}
+
+/**
+ * windowSums of two channels in one loop, so that their four independent sums overlap in the CPU:
+ * out[0..2] for x, out[3..5] for y, each bit-identical to windowSums of that channel alone.
+ * Kernel: trusts its inputs (0 ≤ start ≤ end ≤ both lengths, out holds 6 values).
+ */
+function windowSumsPair(x: Float32Array, y: Float32Array, start: number, end: number, out: Float64Array): void {
+  let sx = 0;
+  let s2x = 0;
+  let peakX = 0;
+  let sy = 0;
+  let s2y = 0;
+  let peakY = 0;
+  for (let i = start; i < end; i++) {
+    const u = x[i];
+    const v = y[i];
+    sx += u;
+    s2x += u * u;
+    sy += v;
+    s2y += v * v;
+    const a = Math.abs(u);
+    if (a > peakX) peakX = a;
+    const b = Math.abs(v);
+    if (b > peakY) peakY = b;
+  }
+  out[0] = sx;
+  out[1] = s2x;
+  out[2] = peakX;
+  out[3] = sy;
+  out[4] = s2y;
+  out[5] = peakY;
+}
+
+/** Running totals of one channel over the windows measured so far. */
+interface ChannelTotals {
+  /** Highest |x|. */
+  peak: number;
+  /** Σx, float64, the windows' sums added in window order. */
+  sum: number;
+  /** Σx², likewise. */
+  sumSquares: number;
+  /** Samples in near-silent windows. */
+  silentSamples: number;
+  /** Length of the current run at or beyond the clip threshold, signed by its polarity; 0 for none. */
+  run: number;
+  /** Samples in finished runs of at least minClipRun. */
+  clipped: number;
+  /** Finished runs of at least minClipRun. */
+  runs: number;
+}
+
+const newTotals = (): ChannelTotals => ({
+  peak: 0,
+  sum: 0,
+  sumSquares: 0,
+  silentSamples: 0,
+  run: 0,
+  clipped: 0,
+  runs: 0,
+});
+
+/** Ends the current run of `st` (counting it if it holds ≥ minClipRun samples). */
+function endClipRun(st: ChannelTotals, minClipRun: number): void {
+  const len = Math.abs(st.run);
+  if (len >= minClipRun) {
+    st.clipped += len;
+    st.runs++;
+  }
+  st.run = 0;
+}
+
+/**
+ * Advances the clip-run state over x[start, end): a sample with |x| ≥ clipThreshold extends the
+ * current run if it has the run's sign, else ends it and starts a new one; any other sample ends it.
+ * Kernel: trusts its inputs (clipThreshold > 0, so a sample at or beyond it is nonzero).
+ */
+function trackClipRuns(
+  x: Float32Array,
+  start: number,
+  end: number,
+  clipThreshold: number,
+  minClipRun: number,
+  st: ChannelTotals,
+): void {
+  for (let i = start; i < end; i++) {
+    const v = x[i];
+    if (Math.abs(v) >= clipThreshold) {
+      if (v > 0 ? st.run > 0 : st.run < 0) st.run += v > 0 ? 1 : -1;
+      else {
+        endClipRun(st, minClipRun);
+        st.run = v > 0 ? 1 : -1;
+      }
+    } else if (st.run !== 0) endClipRun(st, minClipRun);
+  }
+}
+
+/**
  * Measures sample peak, RMS, crest factor, DC offset, clipping and near-silence of each channel and
- * of all channels together, in one pass per channel, accumulating in float64 (per window, then per
- * clip, which keeps the rounding error near 1e-15 relative).
+ * of all channels together, accumulating in float64 (per window, then per clip, which keeps the
+ * rounding error near 1e-15 relative). One pass sums two channels at a time; the clip-run tracker
+ * then reads again only the windows that hold a sample at or beyond clipThreshold (each channel's
+ * results are the same as when it is measured alone, bit for bit).
  *
  * - RMS = √((1/N)·Σ x²) (plain; full-scale sine −3.0103 dBFS, crest √2 = 3.0103 dB: see the
  *   module comment). Overall RMS is over every sample of every channel: √(mean of the channels'
@@ -159,62 +278,60 @@ export function measureLevels(channels: Float32Array[], opts: MeasureLevelsOptio
   let allClipped = 0;
   let allRuns = 0;
 
-  for (let c = 0; c < channels.length; c++) {
+  const sums = new Float64Array(6);
+  /** Adds window w = x[start, end) of one channel, with its sums s, s2 and peak, to its totals t. */
+  const addWindow = (
+    t: ChannelTotals,
+    x: Float32Array,
+    w: number,
+    start: number,
+    end: number,
+    s: number,
+    s2: number,
+    windowPeak: number,
+  ): void => {
+    if (windowPeak > t.peak) t.peak = windowPeak;
+    // Only a window holding a sample at or beyond the threshold needs the run tracker; any other
+    // (non-empty) window ends a run carried into it at its first sample.
+    if (windowPeak >= clipThreshold) trackClipRuns(x, start, end, clipThreshold, minClipRun, t);
+    else if (t.run !== 0 && end > start) endClipRun(t, minClipRun);
+    if (s2 < silentMeanSquare * (end - start)) t.silentSamples += end - start;
+    allWindowSums[w] += s2;
+    t.sum += s;
+    t.sumSquares += s2;
+  };
+  /** Closes channel c's totals t: counts a run reaching the end, checks and reports the channel. */
+  const addChannel = (t: ChannelTotals, c: number): void => {
+    endClipRun(t, minClipRun);
+    if (!Number.isFinite(t.sumSquares) || !Number.isFinite(t.peak)) {
+      throw new RangeError(`${fn}: channel ${c} contains NaN or infinite samples`);
+    }
+    perChannel.push(levelsFrom(t.peak, t.sum, t.sumSquares, n, t.clipped, t.runs, t.silentSamples / n));
+    if (t.peak > allPeak) allPeak = t.peak;
+    allSum += t.sum;
+    allSumSquares += t.sumSquares;
+    allClipped += t.clipped;
+    allRuns += t.runs;
+  };
+
+  // Channels in pairs (the last one alone when their number is odd); each channel's sums are
+  // accumulated exactly as when it is measured alone, and allWindowSums in channel order.
+  for (let c = 0; c < channels.length; c += 2) {
     const x = channels[c];
-    let peak = 0;
-    let sum = 0;
-    let sumSquares = 0;
-    let silentSamples = 0;
-    let clipped = 0;
-    let runs = 0;
-    let run = 0; // length of the current run at or beyond the threshold, signed by its polarity
+    const y = c + 1 < channels.length ? channels[c + 1] : undefined;
+    const tx = newTotals();
+    const ty = newTotals();
     let start = 0;
     for (let w = 0; w < windows; w++) {
       const end = w + 1 === windows ? n : frameStart(w + 1, spw);
-      let s = 0;
-      let s2 = 0;
-      for (let i = start; i < end; i++) {
-        const v = x[i];
-        const a = Math.abs(v);
-        s += v;
-        s2 += v * v;
-        if (a > peak) peak = a;
-        if (a >= clipThreshold) {
-          if (v > 0 ? run > 0 : run < 0) run += v > 0 ? 1 : -1;
-          else {
-            if (Math.abs(run) >= minClipRun) {
-              clipped += Math.abs(run);
-              runs++;
-            }
-            run = v > 0 ? 1 : -1;
-          }
-        } else if (run !== 0) {
-          if (Math.abs(run) >= minClipRun) {
-            clipped += Math.abs(run);
-            runs++;
-          }
-          run = 0;
-        }
-      }
-      if (s2 < silentMeanSquare * (end - start)) silentSamples += end - start;
-      allWindowSums[w] += s2;
-      sum += s;
-      sumSquares += s2;
+      if (y === undefined) windowSums(x, start, end, sums);
+      else windowSumsPair(x, y, start, end, sums);
+      addWindow(tx, x, w, start, end, sums[0], sums[1], sums[2]);
+      if (y !== undefined) addWindow(ty, y, w, start, end, sums[3], sums[4], sums[5]);
       start = end;
     }
-    if (Math.abs(run) >= minClipRun) {
-      clipped += Math.abs(run);
-      runs++;
-    }
-    if (!Number.isFinite(sumSquares) || !Number.isFinite(peak)) {
-      throw new RangeError(`${fn}: channel ${c} contains NaN or infinite samples`);
-    }
-    perChannel.push(levelsFrom(peak, sum, sumSquares, n, clipped, runs, silentSamples / n));
-    if (peak > allPeak) allPeak = peak;
-    allSum += sum;
-    allSumSquares += sumSquares;
-    allClipped += clipped;
-    allRuns += runs;
+    addChannel(tx, c);
+    if (y !== undefined) addChannel(ty, c + 1);
   }
 
   let allSilent = 0;

@@ -73,6 +73,26 @@ describe('measureLevels: clipping', () => {
     expect(r.clippedSamples).toBe(3 + 5 + 3 + 4 + 4);
   });
 
+  it('carries a run across silence-window boundaries and ends it in a window without clipping', () => {
+    // 10-sample windows (1 kHz, 10 ms). Counts below are by hand from the placed runs.
+    const x = new Float32Array(120);
+    x.fill(1, 8, 13); // 5 samples over the boundary at 10: one run of 5
+    x.fill(-1, 17, 20); // 3 samples ending on a window's last sample; window 2 is clean: counts (3)
+    x.fill(1, 38, 40); // 2 samples ending window 3 ...
+    x.fill(1, 40, 41); // ... continued by 1 in window 4: one run of 3
+    x.fill(-1, 59, 61); // 2 over the boundary at 60: too short
+    x.fill(1, 78, 80); // 2 at the end of window 7 ...
+    x.fill(-1, 80, 82); // ... then 2 of the other sign in window 8: two runs of 2, neither counts
+    x.fill(-1, 88, 90); // 2 ending window 8; window 9 is clean, so ...
+    x.fill(-1, 100, 102); // ... these 2 of the same sign are a new run: neither counts
+    x.fill(1, 111, 120); // 9 reaching the end of the clip: counts
+    const r = measureLevels([x], { sampleRate: 1000, silenceWindowS: 0.01 }).perChannel[0];
+    expect(r.clippedRuns).toBe(4);
+    expect(r.clippedSamples).toBe(5 + 3 + 3 + 9);
+    const r2 = measureLevels([x], { sampleRate: 1000, silenceWindowS: 0.01, minClipRun: 2 }).perChannel[0];
+    expect([r2.clippedRuns, r2.clippedSamples]).toEqual([9, 5 + 3 + 3 + 2 + 2 + 2 + 2 + 2 + 9]);
+  });
+
   it('follows minClipRun and clipThreshold', () => {
     const x = new Float32Array(100);
     x.fill(1, 10, 12); // run of 2
@@ -144,6 +164,28 @@ describe('measureLevels: channels', () => {
     expect(r.perChannel[0].nearSilenceFraction).toBeCloseTo(1, 12);
     expect(r.perChannel[1].nearSilenceFraction).toBeCloseTo(0.5, 12);
     expect(r.overall.nearSilenceFraction).toBeCloseTo(0.5, 12);
+  });
+
+  it('gives each channel the same levels whichever channels it is measured with', () => {
+    // Invariant: channels are summed in pairs, but each channel's additions happen in the same order
+    // as when it is measured alone, so its levels are identical (exact comparison intended).
+    const a = sine(FS + 7, 1000, 1.2); // beyond full scale: clipped runs
+    const b = sine(FS + 7, 440, 0.3, 0.01);
+    const c = new Float32Array(FS + 7);
+    c.set(sine(FS / 2, 1000, 1.5), FS / 4); // clipping between silences
+    const alone = [a, b, c].map((x) => measureLevels([x], { sampleRate: FS }).perChannel[0]);
+    expect(alone[0].clippedRuns).toBeGreaterThan(0);
+    expect(alone[2].clippedRuns).toBeGreaterThan(0);
+    for (const [set, idx] of [
+      [[a, b, c], [0, 1, 2]],
+      [[c, a], [2, 0]],
+      [[b, c, a, b], [1, 2, 0, 1]],
+    ] as const) {
+      const r = measureLevels([...set], { sampleRate: FS });
+      idx.forEach((k, i) => expect(r.perChannel[i]).toEqual(alone[k]));
+      expect(r.overall.clippedRuns).toBe(idx.reduce((t: number, k) => t + alone[k].clippedRuns, 0));
+      expect(r.overall.samplePeak).toBe(Math.max(...idx.map((k) => alone[k].samplePeak)));
+    }
   });
 
   it('reports digital silence as −∞ dBFS with NaN crest', () => {
