@@ -38,7 +38,10 @@ export const TRUE_PEAK_PHASES: readonly (readonly number[])[] = [
 ];
 
 const TAPS = 12;
-/** Output positions checked together against one bound; must be ≥ TAPS − 1 (see peakKernel). */
+/**
+ * Output positions checked together against one bound; must be ≥ TAPS − 1 (see peakKernel). Pass 1
+ * ({@link blockMaximaByBits}) is unrolled for exactly 16.
+ */
 const CHUNK = 16;
 /**
  * max over branches of Σ_k |h_p[k]|, raised by 1e-12 relative: a computed |y| can exceed the exact
@@ -46,6 +49,12 @@ const CHUNK = 16;
  */
 const ABS_TAP_SUM_BOUND =
   Math.max(...TRUE_PEAK_PHASES.map((h) => h.reduce((s, v) => s + Math.abs(v), 0))) * (1 + 1e-12);
+/** A binary32 pattern with the sign bit cleared; for non-NaN values it orders as |x| (IEEE 754). */
+const ABS_BITS_MASK = 0x7fffffff;
+/** The pattern of +Infinity; any larger masked pattern is a NaN. */
+const INFINITY_BITS = 0x7f800000;
+/** Longest channel pass 1 reads by bits; its int32 index arithmetic stays below 2³¹ (longer → plain pass). */
+const MAX_BITS_PASS_LENGTH = 2 ** 30;
 
 /** Largest |x[i]| (the sample peak), linear full scale. Empty → 0. */
 export function samplePeakLinear(samples: Float32Array): number {
@@ -103,19 +112,106 @@ export function channelTruePeakLinear(samples: Float32Array): number {
 function peakKernel(x: Float32Array, includeSamples: boolean): number {
   const n = x.length;
   if (n === 0) return 0;
-  const [h0, h1, h2, h3] = TRUE_PEAK_PHASES;
-  const a0 = h0[0], a1 = h0[1], a2 = h0[2], a3 = h0[3], a4 = h0[4], a5 = h0[5];
-  const a6 = h0[6], a7 = h0[7], a8 = h0[8], a9 = h0[9], a10 = h0[10], a11 = h0[11];
-  const b0 = h1[0], b1 = h1[1], b2 = h1[2], b3 = h1[3], b4 = h1[4], b5 = h1[5];
-  const b6 = h1[6], b7 = h1[7], b8 = h1[8], b9 = h1[9], b10 = h1[10], b11 = h1[11];
-  const c0 = h2[0], c1 = h2[1], c2 = h2[2], c3 = h2[3], c4 = h2[4], c5 = h2[5];
-  const c6 = h2[6], c7 = h2[7], c8 = h2[8], c9 = h2[9], c10 = h2[10], c11 = h2[11];
-  const d0 = h3[0], d1 = h3[1], d2 = h3[2], d3 = h3[3], d4 = h3[4], d5 = h3[5];
-  const d6 = h3[6], d7 = h3[7], d8 = h3[8], d9 = h3[9], d10 = h3[10], d11 = h3[11];
-
   // Pass 1: max |x| of each block of CHUNK inputs (exact in float32) and the sample peak.
+  const blockMax = new Float32Array(Math.ceil(n / CHUNK) + 1); // one spare zero block for the flush tail
+  let samplePeak = n <= MAX_BITS_PASS_LENGTH ? blockMaximaByBits(x, blockMax) : Number.NaN;
+  if (Number.isNaN(samplePeak)) samplePeak = blockMaximaPlain(x, blockMax);
+
+  // Pass 2: outputs [start, start + CHUNK) read inputs [start − 11, start + CHUNK); CHUNK ≥ 11, so the
+  // max of this input block and the previous one bounds every |y| in the run. Rounding is monotone,
+  // so max(a, b)·B = max(a·B, b·B) and each block's product is tested twice (no branch on a < b).
+  const bound = ABS_TAP_SUM_BOUND;
+  const total = n + TAPS - 1;
+  const runs = Math.ceil(total / CHUNK);
+  let run = includeSamples ? samplePeak : 0;
+  let previous = 0;
+  for (let blk = 0; blk < runs; blk++) {
+    const current = blockMax[blk] * bound;
+    if (current > run || previous > run) {
+      const start = blk * CHUNK;
+      run = filteredPeak(x, start, Math.min(start + CHUNK, total), run);
+    }
+    previous = current;
+  }
+  return run;
+}
+
+/**
+ * Pass 1 of {@link peakKernel}: blockMax[b] = max |x[i]| over inputs [16b, 16b + 16) and the largest
+ * of them (the sample peak), or NaN when x holds a NaN (blockMax then incomplete: use
+ * {@link blockMaximaPlain}). Needs x.length ≤ 2³⁰.
+ *
+ * Exact and free of data-dependent branches (a running `if (a > m)` mispredicts on audio): for
+ * non-NaN binary32 values |x| orders as the bit pattern with the sign cleared (IEEE 754 places the
+ * biased exponent above the mantissa), so maxima are taken on those int32 patterns as
+ * max(m, v) = m − (d & (d >> 31)), d = m − v (both in [0, 2³¹), so d cannot overflow), with four
+ * running maxima per block, and stored through an Int32Array view of blockMax.
+ */
+function blockMaximaByBits(x: Float32Array, blockMax: Float32Array): number {
+  const n = x.length;
+  const mask = ABS_BITS_MASK;
+  const bits = new Int32Array(x.buffer, x.byteOffset, n);
+  const out = new Int32Array(blockMax.buffer, blockMax.byteOffset, blockMax.length);
+  // Whole blocks only. The mask tells the compiler i + 15 stays below 2³¹, so it drops overflow checks.
+  const wholeEnd = n & 0x7ffffff0;
+  let peak = 0;
+  let d = 0;
+  for (let i = 0; i < wholeEnd; i += 16) {
+    let m0 = bits[i] & mask;
+    let m1 = bits[i + 1] & mask;
+    let m2 = bits[i + 2] & mask;
+    let m3 = bits[i + 3] & mask;
+    d = (m0 - (bits[i + 4] & mask)) | 0;
+    m0 = (m0 - (d & (d >> 31))) | 0;
+    d = (m1 - (bits[i + 5] & mask)) | 0;
+    m1 = (m1 - (d & (d >> 31))) | 0;
+    d = (m2 - (bits[i + 6] & mask)) | 0;
+    m2 = (m2 - (d & (d >> 31))) | 0;
+    d = (m3 - (bits[i + 7] & mask)) | 0;
+    m3 = (m3 - (d & (d >> 31))) | 0;
+    d = (m0 - (bits[i + 8] & mask)) | 0;
+    m0 = (m0 - (d & (d >> 31))) | 0;
+    d = (m1 - (bits[i + 9] & mask)) | 0;
+    m1 = (m1 - (d & (d >> 31))) | 0;
+    d = (m2 - (bits[i + 10] & mask)) | 0;
+    m2 = (m2 - (d & (d >> 31))) | 0;
+    d = (m3 - (bits[i + 11] & mask)) | 0;
+    m3 = (m3 - (d & (d >> 31))) | 0;
+    d = (m0 - (bits[i + 12] & mask)) | 0;
+    m0 = (m0 - (d & (d >> 31))) | 0;
+    d = (m1 - (bits[i + 13] & mask)) | 0;
+    m1 = (m1 - (d & (d >> 31))) | 0;
+    d = (m2 - (bits[i + 14] & mask)) | 0;
+    m2 = (m2 - (d & (d >> 31))) | 0;
+    d = (m3 - (bits[i + 15] & mask)) | 0;
+    m3 = (m3 - (d & (d >> 31))) | 0;
+    d = (m0 - m1) | 0;
+    m0 = (m0 - (d & (d >> 31))) | 0;
+    d = (m2 - m3) | 0;
+    m2 = (m2 - (d & (d >> 31))) | 0;
+    d = (m0 - m2) | 0;
+    m0 = (m0 - (d & (d >> 31))) | 0;
+    out[i >> 4] = m0;
+    d = (peak - m0) | 0;
+    peak = (peak - (d & (d >> 31))) | 0;
+  }
+  if (wholeEnd < n) {
+    let m = 0;
+    for (let i = wholeEnd; i < n; i++) {
+      const v = bits[i] & mask;
+      if (v > m) m = v;
+    }
+    out[wholeEnd >> 4] = m;
+    if (m > peak) peak = m;
+  }
+  if (peak > INFINITY_BITS) return Number.NaN;
+  return new Float32Array(Int32Array.of(peak).buffer)[0];
+}
+
+/** Pass 1 with float compares, for any length and for NaN samples (`a > m` is false: NaN never counts). */
+function blockMaximaPlain(x: Float32Array, blockMax: Float32Array): number {
+  const n = x.length;
   const blocks = Math.ceil(n / CHUNK);
-  const blockMax = new Float32Array(blocks + 1); // one spare zero block for the flush tail
   let samplePeak = 0;
   for (let blk = 0; blk < blocks; blk++) {
     const end = Math.min(n, (blk + 1) * CHUNK);
@@ -127,29 +223,38 @@ function peakKernel(x: Float32Array, includeSamples: boolean): number {
     blockMax[blk] = m;
     if (m > samplePeak) samplePeak = m;
   }
+  return samplePeak;
+}
 
-  // Pass 2: outputs [start, start + CHUNK) read inputs [start − 11, start + CHUNK); CHUNK ≥ 11, so the
-  // max of this input block and the previous one bounds every |y| in the run.
-  let run = includeSamples ? samplePeak : 0;
-  const total = n + TAPS - 1;
-  for (let blk = 0, start = 0; start < total; blk++, start += CHUNK) {
-    const stop = Math.min(start + CHUNK, total);
-    const previous = blk > 0 ? blockMax[blk - 1] : 0;
-    const local = blockMax[blk] > previous ? blockMax[blk] : previous;
-    if (local * ABS_TAP_SUM_BOUND <= run) continue;
-    for (let p = start; p < stop; p++) {
-      if (p < TAPS - 1 || p >= n) {
-        const m = peakAtEdge(x, p);
-        if (m > run) run = m;
-        continue;
-      }
-      const x0 = x[p], x1 = x[p - 1], x2 = x[p - 2], x3 = x[p - 3], x4 = x[p - 4], x5 = x[p - 5];
-      const x6 = x[p - 6], x7 = x[p - 7], x8 = x[p - 8], x9 = x[p - 9], x10 = x[p - 10], x11 = x[p - 11];
-      const y0 = a0 * x0 + a1 * x1 + a2 * x2 + a3 * x3 + a4 * x4 + a5 * x5 + a6 * x6 + a7 * x7 + a8 * x8 + a9 * x9 + a10 * x10 + a11 * x11;
-      const y1 = b0 * x0 + b1 * x1 + b2 * x2 + b3 * x3 + b4 * x4 + b5 * x5 + b6 * x6 + b7 * x7 + b8 * x8 + b9 * x9 + b10 * x10 + b11 * x11;
-      const y2 = c0 * x0 + c1 * x1 + c2 * x2 + c3 * x3 + c4 * x4 + c5 * x5 + c6 * x6 + c7 * x7 + c8 * x8 + c9 * x9 + c10 * x10 + c11 * x11;
-      const y3 = d0 * x0 + d1 * x1 + d2 * x2 + d3 * x3 + d4 * x4 + d5 * x5 + d6 * x6 + d7 * x7 + d8 * x8 + d9 * x9 + d10 * x10 + d11 * x11;
-      const m = Math.max(Math.abs(y0), Math.abs(y1), Math.abs(y2), Math.abs(y3));
+/** max(run, |y| over the four branches at input positions [start, stop)); a NaN output never counts. */
+function filteredPeak(x: Float32Array, start: number, stop: number, run: number): number {
+  const n = x.length;
+  const [h0, h1, h2, h3] = TRUE_PEAK_PHASES;
+  const a0 = h0[0], a1 = h0[1], a2 = h0[2], a3 = h0[3], a4 = h0[4], a5 = h0[5];
+  const a6 = h0[6], a7 = h0[7], a8 = h0[8], a9 = h0[9], a10 = h0[10], a11 = h0[11];
+  const b0 = h1[0], b1 = h1[1], b2 = h1[2], b3 = h1[3], b4 = h1[4], b5 = h1[5];
+  const b6 = h1[6], b7 = h1[7], b8 = h1[8], b9 = h1[9], b10 = h1[10], b11 = h1[11];
+  const c0 = h2[0], c1 = h2[1], c2 = h2[2], c3 = h2[3], c4 = h2[4], c5 = h2[5];
+  const c6 = h2[6], c7 = h2[7], c8 = h2[8], c9 = h2[9], c10 = h2[10], c11 = h2[11];
+  const d0 = h3[0], d1 = h3[1], d2 = h3[2], d3 = h3[3], d4 = h3[4], d5 = h3[5];
+  const d6 = h3[6], d7 = h3[7], d8 = h3[8], d9 = h3[9], d10 = h3[10], d11 = h3[11];
+  for (let p = start; p < stop; p++) {
+    if (p < TAPS - 1 || p >= n) {
+      const m = peakAtEdge(x, p);
+      if (m > run) run = m;
+      continue;
+    }
+    const x0 = x[p], x1 = x[p - 1], x2 = x[p - 2], x3 = x[p - 3], x4 = x[p - 4], x5 = x[p - 5];
+    const x6 = x[p - 6], x7 = x[p - 7], x8 = x[p - 8], x9 = x[p - 9], x10 = x[p - 10], x11 = x[p - 11];
+    const y0 = a0 * x0 + a1 * x1 + a2 * x2 + a3 * x3 + a4 * x4 + a5 * x5 + a6 * x6 + a7 * x7 + a8 * x8 + a9 * x9 + a10 * x10 + a11 * x11;
+    const y1 = b0 * x0 + b1 * x1 + b2 * x2 + b3 * x3 + b4 * x4 + b5 * x5 + b6 * x6 + b7 * x7 + b8 * x8 + b9 * x9 + b10 * x10 + b11 * x11;
+    const y2 = c0 * x0 + c1 * x1 + c2 * x2 + c3 * x3 + c4 * x4 + c5 * x5 + c6 * x6 + c7 * x7 + c8 * x8 + c9 * x9 + c10 * x10 + c11 * x11;
+    const y3 = d0 * x0 + d1 * x1 + d2 * x2 + d3 * x3 + d4 * x4 + d5 * x5 + d6 * x6 + d7 * x7 + d8 * x8 + d9 * x9 + d10 * x10 + d11 * x11;
+    const m0 = Math.abs(y0), m1 = Math.abs(y1), m2 = Math.abs(y2), m3 = Math.abs(y3);
+    // Rarely true, so well predicted (Math.max alone branches on which |y| is largest); then the
+    // original rule: Math.max is NaN if any output is, and a NaN never beats run.
+    if (m0 > run || m1 > run || m2 > run || m3 > run) {
+      const m = Math.max(m0, m1, m2, m3);
       if (m > run) run = m;
     }
   }

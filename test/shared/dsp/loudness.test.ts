@@ -5,10 +5,11 @@ import { kWeight, kWeightingCoeffs, kWeightingGainDb } from '../../../shared/dsp
 import {
   defaultChannelWeights,
   kWeightedSubBlockSums,
+  kWeightedSubBlockSumsPair,
   measureLoudness,
   subBlockEdges,
 } from '../../../shared/dsp/loudness.ts';
-import { musicLike, steppedTone } from './loudness-test-signals.ts';
+import { lcg, musicLike, steppedTone } from './loudness-test-signals.ts';
 
 describe('measureLoudness calibration', () => {
   it('reads a stereo 997 Hz sine at −23 dBFS as −23.000 LUFS at 48 kHz', () => {
@@ -133,6 +134,49 @@ describe('measureLoudness time grid', () => {
       // Same filter arithmetic; the sums agree to rounding (1e-12 relative).
       expect(sums[k] / e).toBeCloseTo(1, 12);
     }
+  });
+
+  it('two-channel kernel adds exactly what two single-channel calls add', () => {
+    // Reference: kWeightedSubBlockSums on each channel. The pair kernel runs the same operations in
+    // the same order per channel, so the sums must be identical, not merely close. 11025 Hz gives
+    // uneven sub-blocks; the 0.3 s burst then silence drives the state below the 1e-150 flush.
+    for (const fs of [11025, 44100]) {
+      const a = musicLike(2, fs, 5);
+      const b = new Float32Array(a.length);
+      const rnd = lcg(8);
+      for (let i = 0; i < Math.round(0.3 * fs); i++) b[i] = rnd() * 2 - 1;
+      const edges = subBlockEdges(fs, a.length);
+      const coeffs = kWeightingCoeffs(fs);
+      for (const [x, z] of [[a, b], [b, a]]) {
+        const single = [x, z].map((ch) => kWeightedSubBlockSums(ch, coeffs, edges, new Float64Array(edges.length - 1)));
+        const pair = [new Float64Array(edges.length - 1), new Float64Array(edges.length - 1)];
+        kWeightedSubBlockSumsPair(x, z, coeffs, edges, pair[0], pair[1]);
+        expect(Array.from(pair[0])).toEqual(Array.from(single[0]));
+        expect(Array.from(pair[1])).toEqual(Array.from(single[1]));
+      }
+      const burst = kWeightedSubBlockSums(b, coeffs, edges, new Float64Array(edges.length - 1));
+      expect(burst[burst.length - 1]).toBe(0); // the state was flushed, not left to decay
+    }
+  });
+
+  it('filters channels two at a time without changing the channel sum (odd counts, weight 0)', () => {
+    // BS.1770-4 Annex 1: a block's energy Σ Gᵢ·zᵢ is linear in the channels, so the momentary energy
+    // of [a, b, c] (a pair and a single) is that of [a, b] plus that of [c], to rounding (1e-12
+    // relative); a weight-0 channel is skipped, so [a, b, c] weighted [1, 0, 1] is [a, c] exactly.
+    const fs = 16000;
+    const [a, b, c] = [1, 2, 3].map((seed) => musicLike(4, fs, seed, 0.5));
+    const energy = (lufs: number) => Math.pow(10, (lufs + 0.691) / 10);
+    const abc = measureLoudness([a, b, c], fs).momentaryLufs;
+    const ab = measureLoudness([a, b], fs).momentaryLufs;
+    const cOnly = measureLoudness([c], fs).momentaryLufs;
+    expect(abc.length).toBe(37);
+    for (let j = 0; j < abc.length; j++) {
+      expect(energy(abc[j]) / (energy(ab[j]) + energy(cOnly[j]))).toBeCloseTo(1, 12);
+    }
+    const ac = measureLoudness([a, c], fs);
+    const a0c = measureLoudness([a, b, c], fs, { channelWeights: [1, 0, 1] });
+    expect(Array.from(a0c.momentaryLufs)).toEqual(Array.from(ac.momentaryLufs));
+    expect(a0c.integratedLufs).toBe(ac.integratedLufs);
   });
 });
 

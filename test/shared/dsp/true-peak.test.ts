@@ -13,7 +13,7 @@ import {
   oversampledPeakLinear,
   samplePeakLinear,
 } from '../../../shared/dsp/true-peak.ts';
-import { fadedSine } from './loudness-test-signals.ts';
+import { fadedSine, lcg, musicLike } from './loudness-test-signals.ts';
 
 type Case = [id: number, cyclesPerSample: number, amp: number, phaseDeg: number, nominal: number, filterDb: number, samplesDb: number];
 // [calc] filter-alone and sample-peak levels (dB) from reference_values.py.
@@ -72,6 +72,30 @@ describe('the Annex 2 filter', () => {
     expect(silent.truePeakDbtp).toBe(-Infinity);
     expect(channelTruePeakLinear(new Float32Array(0))).toBe(0);
     expect(channelTruePeakLinear(Float32Array.of(-0.5))).toBe(0.5);
+  });
+
+  it('reads views at any offset, and ignores NaN samples, as the plain float pass does', () => {
+    // Pass 1 reads the samples' bit patterns through an Int32Array view of the same memory, so a view
+    // at an odd element offset must give exactly what a copy gives. A NaN sample makes its own
+    // filter outputs NaN, which never count, and must not count as a sample peak: with the loud
+    // burst elsewhere, the result equals that of the same clip with the NaN replaced by 0
+    // (reference: the NaN-free clip; exact, both evaluate the same finite outputs above 0.2).
+    const x = musicLike(1, 48000, 4, 0.5);
+    for (const offset of [1, 3, 5, 17]) {
+      x.fill(1, 0, offset); // full scale just before the view: it must not be read
+      const view = x.subarray(offset, x.length - 2);
+      expect(channelTruePeakLinear(view)).toBe(channelTruePeakLinear(view.slice()));
+      expect(channelTruePeakLinear(view)).toBeLessThan(0.6);
+    }
+    const rnd = lcg(3);
+    const quiet = Float32Array.from({ length: 3001 }, () => (rnd() - 0.5) * 0.1);
+    quiet[500] = 0.9;
+    const withNaN = quiet.slice();
+    withNaN[2000] = Number.NaN;
+    quiet[2000] = 0;
+    expect(channelTruePeakLinear(withNaN)).toBe(channelTruePeakLinear(quiet));
+    expect(oversampledPeakLinear(withNaN)).toBe(oversampledPeakLinear(quiet));
+    expect(channelTruePeakLinear(new Float32Array(40).fill(Number.NaN))).toBe(0);
   });
 
   it('validates its arguments', () => {
