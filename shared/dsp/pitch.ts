@@ -19,7 +19,8 @@
  *    Kaiser, *System Analysis by Digital Computer*, 1966; design formulas in Oppenheim & Schafer,
  *    *Discrete-Time Signal Processing*, 3rd ed., ch. 7, Kaiser window method), half-band stages
  *    when q is a power of two: the band to 0.2·fs_a (≥ 1.1·maxHz) passes, and what would alias onto
- *    it is ≥ 40 dB down.
+ *    it is ≥ 40 dB down. The half-band stages run two at a time in one loop, the signal between
+ *    them held in locals (rounded to float32, as if stored), the same sums as stage by stage.
  * 2. FFT difference function. d(τ) = e(0) + e(τ) − 2·c(τ), e from prefix sums of squares and
  *    c(τ) = Σ_{j<W} x[t+j]·x[t+j+τ] assembled from blocks of B samples (a hop, or an equal part of
  *    one when the hop exceeds half the longest lag, which keeps N small): each block's spectrum
@@ -212,7 +213,9 @@ function firRange(
   // interior outputs a…b−1 have every tap inside the input
   const a = Math.min(m1, Math.max(m0, Math.ceil(half / q)));
   const b = Math.max(a, Math.min(m1, Math.floor((nIn - 1 - half) / q) + 1));
-  if (pairs === 2) {
+  if (pairs === 2 && q === 2 && offsets[0] === 1 && offsets[1] === 3 && a < b) {
+    halfBand13(src, a * 2 - srcLo, b - a, centre, weights[0], weights[1], out, o0 + a - m0);
+  } else if (pairs === 2) {
     // the half-band stages: two pairs of taps, unrolled
     const o1 = offsets[0];
     const o2 = offsets[1];
@@ -243,6 +246,108 @@ function firRange(
   };
   for (let m = m0; m < a; m++) edge(m);
   for (let m = b; m < m1; m++) edge(m);
+}
+
+/**
+ * The interior of a 2:1 half-band stage with non-zero taps at offsets 0, ±1, ±3 (every half-band
+ * stage {@link Decimator} makes): count outputs y = centre·x[c] + w1·(x[c−1] + x[c+1]) +
+ * w2·(x[c−3] + x[c+3]), c = c0, c0 + 2, …, into out[j0…]; the same sums as firRange's general loop,
+ * term by term. Each odd input sample serves four outputs, so the four odd samples an output reads
+ * are kept in locals and shifted along: two loads per output instead of five.
+ */
+function halfBand13(
+  src: ArrayLike<number>,
+  c0: number,
+  count: number,
+  centre: number,
+  w1: number,
+  w2: number,
+  out: Float32Array,
+  j0: number,
+): void {
+  let xm3 = src[c0 - 3];
+  let xm1 = src[c0 - 1];
+  let xp1 = src[c0 + 1];
+  let c = c0;
+  const end = j0 + count;
+  for (let j = j0; j < end; j++) {
+    const xp3 = src[c + 3];
+    out[j] = centre * src[c] + w1 * (xm1 + xp1) + w2 * (xm3 + xp3);
+    xm3 = xm1;
+    xm1 = xp1;
+    xp1 = xp3;
+    c += 2;
+  }
+}
+
+/**
+ * Two 2:1 half-band stages (taps at 0, ±1, ±3) in one pass: stage A, y[i] = cA·x[2i] + a1·(x[2i−1] +
+ * x[2i+1]) + a2·(x[2i−3] + x[2i+3]) rounded to float32 (as if stored in a float32 signal), then
+ * stage B on y the same way with cB, b1, b2, for `count` outputs of B whose first reads x at c0
+ * (= 4p₀ − the index of src[0]), into out[j0…]. The sums are those of two {@link halfBand13} passes,
+ * term by term; y is kept in locals (the seven values around 2p), never stored. Interior only: every
+ * x and y read must exist.
+ */
+function halfBand13Pair(
+  src: ArrayLike<number>,
+  c0: number,
+  count: number,
+  cA: number,
+  a1: number,
+  a2: number,
+  cB: number,
+  b1: number,
+  b2: number,
+  out: Float32Array,
+  j0: number,
+): void {
+  // stage A outputs y[2p₀−3] … y[2p₀+1], at x positions t = c0 − 6 … c0 + 2, made in order with
+  // the odd x samples around t kept in locals as in halfBand13 (y[2p₀−2] is not needed: skipped)
+  let t = c0 - 6;
+  let xm3 = src[t - 3];
+  let xm1 = src[t - 1];
+  let xp1 = src[t + 1];
+  let xp3 = src[t + 3];
+  let ym3 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+  t += 4;
+  xm3 = src[t - 3];
+  xm1 = src[t - 1];
+  xp1 = src[t + 1];
+  xp3 = src[t + 3];
+  let ym1 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+  t += 2;
+  xm3 = xm1;
+  xm1 = xp1;
+  xp1 = xp3;
+  xp3 = src[t + 3];
+  let y0 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+  t += 2;
+  xm3 = xm1;
+  xm1 = xp1;
+  xp1 = xp3;
+  xp3 = src[t + 3];
+  let yp1 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+  const end = j0 + count;
+  for (let j = j0; j < end; j++) {
+    // y[2p+2] and y[2p+3]
+    t += 2;
+    xm3 = xm1;
+    xm1 = xp1;
+    xp1 = xp3;
+    xp3 = src[t + 3];
+    const yp2 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+    t += 2;
+    xm3 = xm1;
+    xm1 = xp1;
+    xp1 = xp3;
+    xp3 = src[t + 3];
+    const yp3 = Math.fround(cA * src[t] + a1 * (xm1 + xp1) + a2 * (xm3 + xp3));
+    out[j] = cB * y0 + b1 * (ym1 + yp1) + b2 * (ym3 + yp3);
+    ym3 = ym1;
+    ym1 = yp1;
+    y0 = yp2;
+    yp1 = yp3;
+  }
 }
 
 /** Output samples per block of {@link Decimator.run}. */
@@ -283,6 +388,21 @@ class Decimator {
     this.length = this.ns[this.stages.length];
     this.lo = new Array<number>(this.stages.length + 1);
     this.hi = new Array<number>(this.stages.length + 1);
+    const taps013 = (st: FirStage | undefined) =>
+      st !== undefined && st.q === 2 && st.offsets.length === 2 && st.offsets[0] === 1 && st.offsets[1] === 3;
+    this.pairable = this.stages.map((st, i) => taps013(this.stages[i - 1]) && taps013(st));
+  }
+
+  /** pairable[s]: stages s and s + 1 (1-based) are both half-band stages with taps at 0, ±1, ±3. */
+  private readonly pairable: boolean[];
+
+  /**
+   * Whether outputs p0…p1−1 of stage s + 1 read only stage-s outputs inside that signal, each of
+   * which reads only samples inside stage s's input (so {@link halfBand13Pair} needs no zeros).
+   */
+  private pairInterior(s: number, p0: number, p1: number): boolean {
+    const ns = this.ns;
+    return p0 < p1 && 2 * p0 - 3 >= 2 && 2 * (p1 - 1) + 3 <= ns[s] - 1 && 2 * (2 * (p1 - 1) + 3) + 3 <= ns[s - 1] - 1;
   }
 
   /** Final outputs m0…m1−1 (0 ≤ m0 ≤ m1 ≤ length) into out[o0…]. */
@@ -303,26 +423,40 @@ class Decimator {
       }
       let src: ArrayLike<number> = this.signal;
       for (let s = 1; s <= last; s++) {
-        const len = hi[s] - lo[s];
+        // two half-band stages at once where every tap of both reaches inside their inputs
+        const pair = s < last && this.pairable[s] && this.pairInterior(s, lo[s + 1], hi[s + 1]);
+        const t = pair ? s + 1 : s; // the stage whose output this pass writes
+        const len = hi[t] - lo[t];
         let dst: Float32Array = out;
-        let d0 = o0 + lo[s] - m0;
-        if (s < last) {
-          if (!bufs[s] || bufs[s].length < len) bufs[s] = new Float32Array(Math.max(len, 2 * CASCADE_BLOCK));
-          dst = bufs[s];
+        let d0 = o0 + lo[t] - m0;
+        if (t < last) {
+          if (!bufs[t] || bufs[t].length < len) bufs[t] = new Float32Array(Math.max(len, 2 * CASCADE_BLOCK));
+          dst = bufs[t];
           d0 = 0;
         }
-        firRange(src, s === 1 ? 0 : lo[s - 1], ns[s - 1], stages[s - 1], lo[s], hi[s], dst, d0);
+        const srcLo = s === 1 ? 0 : lo[s - 1];
+        if (pair) {
+          const a = stages[s - 1];
+          const b = stages[s];
+          const [a1, a2] = a.weights;
+          const [b1, b2] = b.weights;
+          halfBand13Pair(src, 4 * lo[t] - srcLo, len, a.centre, a1, a2, b.centre, b1, b2, dst, d0);
+        } else {
+          firRange(src, srcLo, ns[s - 1], stages[s - 1], lo[s], hi[s], dst, d0);
+        }
         src = dst;
+        s = t;
       }
     }
   }
 }
 
 /**
- * The decimated signal made as it is read: `view(from, to)` returns samples from…to−1 as one
- * contiguous float32 view (valid until the next call), computing them when first asked for. Reads
- * must move forward: only the last `capacity` samples are kept, so memory is a window, not the
- * whole decimated signal. A view reaching back before what is kept is a programming error (RangeError).
+ * The decimated signal made as it is read: `ensure(from, to)` makes samples from…to−1 one
+ * contiguous stretch of `samples()` (valid until the next call), computing them when first asked
+ * for, and returns where it starts (an offset, so a read makes no view object). Reads must move
+ * forward: only the last `capacity` samples are kept, so memory is a window, not the whole
+ * decimated signal. A read reaching back before what is kept is a programming error (RangeError).
  */
 class DecimatedStream {
   readonly length: number;
@@ -339,9 +473,10 @@ class DecimatedStream {
     this.buf = new Float32Array(Math.min(dec.length, capacity + CASCADE_BLOCK));
   }
 
-  view(from: number, to: number): Float32Array {
+  /** Makes samples from…to−1 available as samples()[at…at+to−from−1] (until the next call); returns `at`. */
+  ensure(from: number, to: number): number {
     if (from < this.start || to > this.length || from > to) {
-      throw new RangeError(`DecimatedStream.view: ${from}…${to} outside ${this.start}…${this.length}`);
+      throw new RangeError(`DecimatedStream.ensure: ${from}…${to} outside ${this.start}…${this.length}`);
     }
     if (to > this.end) {
       let want = Math.min(this.length, Math.max(to, this.end + CASCADE_BLOCK));
@@ -353,12 +488,17 @@ class DecimatedStream {
         this.start = keep;
         this.end = Math.max(this.end, keep);
         want = Math.min(want, keep + cap);
-        if (want < to) throw new RangeError(`DecimatedStream.view: ${to - from} samples do not fit in ${cap}`);
+        if (want < to) throw new RangeError(`DecimatedStream.ensure: ${to - from} samples do not fit in ${cap}`);
       }
       this.dec.run(this.end, want, this.buf, this.end - this.start);
       this.end = want;
     }
-    return this.buf.subarray(from - this.start, to - this.start);
+    return from - this.start;
+  }
+
+  /** The buffer {@link DecimatedStream.ensure} indexes (the same array for the stream's life). */
+  samples(): Float32Array {
+    return this.buf;
   }
 }
 
@@ -428,31 +568,28 @@ export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: Yi
   const d = new Float64Array(lags);
   const dn = new Float64Array(lags);
   const minRefine = Math.round(0.005 * sampleRate);
+  const cumSq = prefix.values();
+  const lowest = new Float64Array(1); // searchDips' smallest d′
 
   const timesS = new Float64Array(frames);
   const f0Hz = new Float32Array(frames).fill(Number.NaN);
   const aperiodicity = new Float32Array(frames).fill(1);
   const voiced: number[] = [];
-  const blocks = frames > 0 ? (frames - 1) * blocksPerHop + blocksPerWindow : 0;
-  for (let b = 0; b < blocks; b++) {
-    correlator.advance(b);
-    const first = b - blocksPerWindow + 1; // first block of the window that ends with block b
-    if (first < 0 || first % blocksPerHop !== 0) continue;
-    const f = first / blocksPerHop;
+  for (let f = 0; f < frames; f++) {
+    correlator.advanceTo(f * blocksPerHop + blocksPerWindow - 1); // the blocks up to the window's last
     const t0 = f * hop;
     timesS[f] = (t0 + (w + tauMax) / 2) / fsA;
-    const cumSq = prefix.window(t0, w + lags); // cumSq[j] = Σ_{i<t0+j} x[i]²
-    const e0 = cumSq[w] - cumSq[0];
+    const p0 = prefix.window(t0, w + lags); // cumSq[p0 + j] = Σ_{i<t0+j} x[i]²
+    const e0 = cumSq[p0 + w] - cumSq[p0];
     if (e0 <= SILENT_MEAN_SQUARE * w) continue;
 
     // steps 2–4, lag by lag up to the first qualifying dip
     correlator.correlate(corr);
-    const found = searchDips(corr, cumSq, 0, w, e0, d, dn, tauMin, tauMax, threshold);
-    if (found.tau < 0) {
-      aperiodicity[f] = found.lowest;
+    const tau = searchDips(corr, cumSq, p0, w, e0, d, dn, tauMin, tauMax, threshold, lowest);
+    if (tau < 0) {
+      aperiodicity[f] = lowest[0];
       continue;
     }
-    const tau = found.tau;
     aperiodicity[f] = Math.max(0, dn[tau] - parabolaDepth(dn[tau - 1], dn[tau], dn[tau + 1]));
 
     // step 5: parabolic interpolation on d, refined at the full rate where the analysis rate is coarse
@@ -497,13 +634,17 @@ class RunningPrefixSums {
     this.buf = new Float64Array(Math.max(2, capacity));
   }
 
-  /** P[t0 … t0+len−1] as a view (valid until the next call); t0 ≥ the previous t0, len ≤ capacity, t0 + len − 1 ≤ n. */
-  window(t0: number, len: number): Float64Array {
+  /**
+   * Makes P[t0 … t0+len−1] available and returns where P[t0] is in {@link RunningPrefixSums.values}
+   * (valid until the next call); t0 ≥ the previous t0, len ≤ capacity, t0 + len − 1 ≤ n.
+   */
+  window(t0: number, len: number): number {
     const buf = this.buf;
     const end = t0 + len;
-    if (this.start + this.filled >= end) return buf.subarray(t0 - this.start, end - this.start);
+    if (this.start + this.filled >= end) return t0 - this.start;
     const base = this.start + this.filled - 1; // first sample read
-    const x = this.x.view(base, end - 1);
+    const xs = this.x.samples();
+    const at = this.x.ensure(base, end - 1) - base; // x[i] is xs[at + i]
     while (this.start + this.filled < end) {
       if (this.filled === buf.length) {
         // full: slide down, keeping the values from t0 on (at least the last one, to continue the sum)
@@ -512,11 +653,24 @@ class RunningPrefixSums {
         this.start += from;
         this.filled -= from;
       }
-      const v = x[this.start + this.filled - 1 - base];
-      buf[this.filled] = buf[this.filled - 1] + v * v;
-      this.filled++;
+      // P[i] = P[i−1] + x[i−1]² up to the end or the buffer's end, whichever is first
+      const stop = Math.min(buf.length, end - this.start);
+      const shift = at + this.start - 1; // buf[f] takes x[start + f − 1] = xs[shift + f]
+      let f = this.filled;
+      let sum = buf[f - 1];
+      for (; f < stop; f++) {
+        const v = xs[shift + f];
+        sum = sum + v * v;
+        buf[f] = sum;
+      }
+      this.filled = f;
     }
-    return buf.subarray(t0 - this.start, end - this.start);
+    return t0 - this.start;
+  }
+
+  /** The buffer {@link RunningPrefixSums.window} indexes (the same array for the object's life). */
+  values(): Float64Array {
+    return this.buf;
   }
 }
 
@@ -547,6 +701,21 @@ class BlockCorrelator {
   private readonly sIm: Float64Array;
   private readonly qRe: Float64Array;
   private readonly qIm: Float64Array;
+  /**
+   * One buffer holds all the arrays above, as views: the real parts at offsets xAt (the ring), pAt,
+   * powAt, sAt and qAt, the imaginary parts `half` further on; {@link blockStep2} indexes it alone.
+   */
+  private readonly ws: Float64Array;
+  private readonly half: number;
+  private readonly pAt: number;
+  private readonly powAt: number;
+  private readonly sAt: number;
+  private readonly qAt: number;
+  /** Views of the ring's slots, made once (forwardPair writes a block's spectrum into them). */
+  private readonly slotRe: Float64Array[] = [];
+  private readonly slotIm: Float64Array[] = [];
+  /** The next block {@link BlockCorrelator.advanceTo} takes in. */
+  private next = 0;
 
   constructor(
     private readonly x: DecimatedStream,
@@ -555,16 +724,23 @@ class BlockCorrelator {
     lags: number,
   ) {
     this.ahead = Math.ceil(lags / hop);
-    this.ring = this.ahead + 3; // X_b … X_{b+ahead+2} (spectra are made two at a time)
+    // X_b … X_{b+ahead+3}: two blocks are taken in at once and spectra are made two at a time
+    this.ring = this.ahead + 4;
     this.size = nextPowerOfTwo((this.ahead + 1) * hop);
     this.fft = new RealFft(this.size);
     const bins = (this.bins = this.fft.bins);
-    this.xRe = new Float64Array(this.ring * bins);
-    this.xIm = new Float64Array(this.ring * bins);
-    this.pRe = new Float64Array(blocks * bins);
-    this.pIm = new Float64Array(blocks * bins);
-    this.powRe = new Float64Array((this.ahead + 1) * bins);
-    this.powIm = new Float64Array((this.ahead + 1) * bins);
+    this.pAt = this.ring * bins;
+    this.powAt = this.pAt + blocks * bins;
+    this.sAt = this.powAt + (this.ahead + 1) * bins;
+    this.qAt = this.sAt + bins;
+    const half = (this.half = this.qAt + bins);
+    const ws = (this.ws = new Float64Array(2 * half));
+    this.xRe = ws.subarray(0, this.pAt);
+    this.xIm = ws.subarray(half, half + this.pAt);
+    this.pRe = ws.subarray(this.pAt, this.powAt);
+    this.pIm = ws.subarray(half + this.pAt, half + this.powAt);
+    this.powRe = ws.subarray(this.powAt, this.sAt);
+    this.powIm = ws.subarray(half + this.powAt, half + this.sAt);
     for (let l = 0; l <= this.ahead; l++) {
       for (let k = 0; k < bins; k++) {
         const phi = (2 * Math.PI * k * l * hop) / this.size;
@@ -572,31 +748,37 @@ class BlockCorrelator {
         this.powIm[l * bins + k] = -Math.sin(phi);
       }
     }
-    this.sRe = new Float64Array(bins);
-    this.sIm = new Float64Array(bins);
-    this.qRe = new Float64Array(bins);
-    this.qIm = new Float64Array(bins);
+    this.sRe = ws.subarray(this.sAt, this.qAt);
+    this.sIm = ws.subarray(half + this.sAt, half + this.qAt);
+    this.qRe = ws.subarray(this.qAt, half);
+    this.qIm = ws.subarray(half + this.qAt, 2 * half);
+    for (let i = 0; i < this.ring; i++) {
+      this.slotRe.push(this.xRe.subarray(i * bins, (i + 1) * bins));
+      this.slotIm.push(this.xIm.subarray(i * bins, (i + 1) * bins));
+    }
   }
 
   /** Block spectra are made two at a time (one complex FFT); `made` is the last block done. */
   private made = -1;
 
   private blockSpectra(upTo: number): void {
-    const { x, hop, bins, xRe, xIm } = this;
+    const { x, hop, slotRe, slotIm } = this;
     while (this.made < upTo) {
       const b0 = this.made + 1;
-      const s0 = (b0 % this.ring) * bins;
-      const s1 = ((b0 + 1) % this.ring) * bins;
+      const s0 = b0 % this.ring;
+      const s1 = (b0 + 1) % this.ring;
       const start0 = Math.min(x.length, b0 * hop);
       const start1 = Math.min(x.length, start0 + hop);
-      const both = x.view(start0, Math.min(x.length, start1 + hop));
+      const end = Math.min(x.length, start1 + hop);
+      const at = x.ensure(start0, end) - start0; // x[i] is xs[at + i]
+      const xs = x.samples();
       this.fft.forwardPair(
-        both.subarray(0, start1 - start0),
-        both.subarray(start1 - start0),
-        xRe.subarray(s0, s0 + bins),
-        xIm.subarray(s0, s0 + bins),
-        xRe.subarray(s1, s1 + bins),
-        xIm.subarray(s1, s1 + bins),
+        xs.subarray(at + start0, at + start1),
+        xs.subarray(at + start1, at + end),
+        slotRe[s0],
+        slotIm[s0],
+        slotRe[s1],
+        slotIm[s1],
       );
       this.made += 2;
     }
@@ -629,37 +811,144 @@ class BlockCorrelator {
     }
   }
 
-  /** Takes in block b (P_b = conj(X_b)·S_b replaces P_{b−blocks}); visit b = 0, 1, 2, … in order. */
-  advance(b: number): void {
-    const bins = this.bins;
-    if (b === 0) {
-      this.blockSpectra(this.ahead);
-      this.resync(0);
+  /**
+   * Takes in blocks up to `last` in order (each P_b = conj(X_b)·S_b replaces P_{b−blocks}). Two
+   * consecutive blocks go through one pass over the bins ({@link blockStep2}) unless a resync falls
+   * between them; every bin sees the same operations in the same order as block by block.
+   */
+  advanceTo(last: number): void {
+    const { bins, ahead, ring, blocks } = this;
+    while (this.next <= last) {
+      const b = this.next;
+      if (b === 0) {
+        this.blockSpectra(ahead);
+        this.resync(0);
+      }
+      if (b < last && (b + 1) % 1024 !== 0) {
+        this.blockSpectra(b + ahead + 2);
+        const pAt = this.pAt;
+        blockStep2(
+          this.ws,
+          this.half,
+          (b % ring) * bins,
+          ((b + ahead + 1) % ring) * bins,
+          ((b + 1) % ring) * bins,
+          ((b + ahead + 2) % ring) * bins,
+          this.sAt,
+          pAt + (b % blocks) * bins,
+          pAt + ((b + 1) % blocks) * bins,
+          this.qAt,
+          this.powAt + bins,
+          this.powAt + ahead * bins,
+          bins,
+        );
+        this.next = b + 2;
+      } else {
+        this.blockSpectra(b + ahead + 1);
+        blockStep(
+          this.xRe,
+          this.xIm,
+          (b % ring) * bins,
+          ((b + ahead + 1) % ring) * bins,
+          this.sRe,
+          this.sIm,
+          this.pRe,
+          this.pIm,
+          (b % blocks) * bins,
+          this.qRe,
+          this.qIm,
+          this.powRe,
+          this.powIm,
+          ahead * bins,
+          bins,
+        );
+        this.next = b + 1;
+      }
+      if (this.next % 1024 === 0) this.resync(this.next);
     }
-    this.blockSpectra(b + this.ahead + 1);
-    blockStep(
-      this.xRe,
-      this.xIm,
-      (b % this.ring) * bins,
-      ((b + this.ahead + 1) % this.ring) * bins,
-      this.sRe,
-      this.sIm,
-      this.pRe,
-      this.pIm,
-      (b % this.blocks) * bins,
-      this.qRe,
-      this.qIm,
-      this.powRe,
-      this.powIm,
-      this.ahead * bins,
-      bins,
-    );
-    if ((b + 1) % 1024 === 0) this.resync(b + 1);
   }
 
   /** c(τ) for the window made of the last `blocks` blocks, into out[0…size−1] (lags ≥ `lags` unused). */
   correlate(out: Float64Array): void {
     this.fft.inverse(this.qRe, this.qIm, out);
+  }
+}
+
+/**
+ * Two consecutive blocks b, b + 1 of {@link BlockCorrelator} in one pass over the bins: for each bin,
+ * exactly the operations of {@link blockStep} for block b and then for block b + 1, with S and Q
+ * held in locals between the two. The bins are independent, so the results are those of two calls
+ * of blockStep, bit for bit. Every array is a stretch of `ws` (real parts at the offsets given,
+ * imaginary parts `half` further on): X_b at xb, X_{b+A+1} at xn, X_{b+1} at xb2, X_{b+A+2} at xn2,
+ * S at sAt, the product slots of b and b + 1 at p1 and p2, Q at qAt, φ at c1, φᴬ at cA.
+ */
+function blockStep2(
+  ws: Float64Array,
+  half: number,
+  xb: number,
+  xn: number,
+  xb2: number,
+  xn2: number,
+  sAt: number,
+  p1: number,
+  p2: number,
+  qAt: number,
+  c1: number,
+  cA: number,
+  bins: number,
+): void {
+  // offsets as int32 locals (not re-checked as tagged parameters on every access)
+  const h = half | 0;
+  const n = bins | 0;
+  const ob = xb | 0;
+  const on = xn | 0;
+  const ob2 = xb2 | 0;
+  const on2 = xn2 | 0;
+  const os = sAt | 0;
+  const op = p1 | 0;
+  const op2 = p2 | 0;
+  const oq = qAt | 0;
+  const oc = c1 | 0;
+  const oa = cA | 0;
+  for (let k = 0; k < n; k++) {
+    const c = ws[oc + k];
+    const s = ws[h + oc + k];
+    const ar = ws[oa + k];
+    const ai = ws[h + oa + k];
+    // block b
+    let xr = ws[ob + k];
+    let xi = ws[h + ob + k];
+    let sr = ws[os + k];
+    let si = ws[h + os + k];
+    let nr = xr * sr + xi * si;
+    let ni = xr * si - xi * sr;
+    let qr = ws[oq + k] + (nr - ws[op + k]);
+    let qi = ws[h + oq + k] + (ni - ws[h + op + k]);
+    ws[op + k] = nr;
+    ws[h + op + k] = ni;
+    let dr = sr - xr;
+    let di = si - xi;
+    let yr = ws[on + k];
+    let yi = ws[h + on + k];
+    sr = dr * c + di * s + (yr * ar - yi * ai);
+    si = di * c - dr * s + (yr * ai + yi * ar);
+    // block b + 1
+    xr = ws[ob2 + k];
+    xi = ws[h + ob2 + k];
+    nr = xr * sr + xi * si;
+    ni = xr * si - xi * sr;
+    qr += nr - ws[op2 + k];
+    qi += ni - ws[h + op2 + k];
+    ws[op2 + k] = nr;
+    ws[h + op2 + k] = ni;
+    dr = sr - xr;
+    di = si - xi;
+    yr = ws[on2 + k];
+    yi = ws[h + on2 + k];
+    ws[os + k] = dr * c + di * s + (yr * ar - yi * ai);
+    ws[h + os + k] = di * c - dr * s + (yr * ai + yi * ar);
+    ws[oq + k] = qr;
+    ws[h + oq + k] = qi;
   }
 }
 
@@ -716,7 +1005,11 @@ function blockStep(
  * rounding), dn[τ] = d[τ]·τ / Σ_{j=1}^{τ} d[j] (dn[0] = 1; 1 where the sum is 0), and the first local
  * minimum of dn in tauMin…tauMax whose sampled or parabolic-vertex value is below the threshold.
  *
- * @returns tau of that dip (−1 if none) and the smallest dn seen in tauMin…tauMax
+ * The lags are computed one ahead of the lag examined, which is compared with its neighbours held in
+ * locals.
+ *
+ * @param lowest out: lowest[0] = the smallest dn seen in tauMin…tauMax
+ * @returns tau of that dip (−1 if none)
  */
 function searchDips(
   corr: Float64Array,
@@ -729,27 +1022,42 @@ function searchDips(
   tauMin: number,
   tauMax: number,
   threshold: number,
-): { tau: number; lowest: number } {
+  lowest: Float64Array,
+): number {
   dn[0] = 1;
-  let running = 0;
-  let lowest = Infinity;
+  let least = Infinity;
+  // lag 1
+  const v1 = e0 + (cumSq[t0 + 1 + w] - cumSq[t0 + 1]) - 2 * corr[1];
+  const d1 = v1 > 0 ? v1 : 0;
+  d[1] = d1;
+  let running = d1;
+  let here = running > 0 ? (d1 * 1) / running : 1; // (d[k]·k)/Σ at k = 1
+  dn[1] = here;
+  let before = 1; // dn[tau − 1]
   for (let tau = 1; tau <= tauMax; tau++) {
-    // compute lag tau + 1 (lags 1…tauMin+1 on the first pass), then examine lag tau
-    for (let k = tau === 1 ? 1 : tau + 1; k <= tau + 1; k++) {
-      const v = e0 + (cumSq[t0 + k + w] - cumSq[t0 + k]) - 2 * corr[k];
-      const dk = v > 0 ? v : 0;
-      d[k] = dk;
-      running += dk;
-      dn[k] = running > 0 ? (dk * k) / running : 1;
+    // compute lag tau + 1, then examine lag tau
+    const k = tau + 1;
+    const v = e0 + (cumSq[t0 + k + w] - cumSq[t0 + k]) - 2 * corr[k];
+    const dk = v > 0 ? v : 0;
+    d[k] = dk;
+    running += dk;
+    const after = running > 0 ? (dk * k) / running : 1;
+    dn[k] = after;
+    if (tau >= tauMin) {
+      if (here < least) least = here;
+      if (!(here > before || here > after)) {
+        const bottom = here < threshold ? here : here - parabolaDepth(before, here, after);
+        if (bottom < threshold) {
+          lowest[0] = least;
+          return tau;
+        }
+      }
     }
-    if (tau < tauMin) continue;
-    const v = dn[tau];
-    if (v < lowest) lowest = v;
-    if (v > dn[tau - 1] || v > dn[tau + 1]) continue;
-    const bottom = v < threshold ? v : v - parabolaDepth(dn[tau - 1], v, dn[tau + 1]);
-    if (bottom < threshold) return { tau, lowest };
+    before = here;
+    here = after;
   }
-  return { tau: -1, lowest };
+  lowest[0] = least;
+  return -1;
 }
 
 /** How far the vertex of the parabola through (−1, a), (0, b), (1, c) lies below b (0 if not convex). */
