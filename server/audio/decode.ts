@@ -49,6 +49,13 @@ export interface DecodeOptions {
    * (server/analysis/shared-source.ts). An error it throws ends the decoding.
    */
   onFrames?(channels: Float32Array[], from: number, to: number): void;
+  /**
+   * Put a WAV file's channels in shared memory (each its own SharedArrayBuffer), so a worker thread
+   * can read them without a copy (server/analysis/analyze-parallel.ts). Other formats are decoded in
+   * a worker and arrive in ordinary memory whatever this says. Web Audio refuses shared memory
+   * (copyToChannel), so a clip for the renderer must not ask for it. Default false.
+   */
+  sharedChannels?: boolean;
 }
 
 /** Default longest clip, s (20 min). */
@@ -77,6 +84,8 @@ interface Resolved {
   deadlineMs: number;
   onFrames(channels: Float32Array[], from: number, to: number): void;
   progress(f: number): void;
+  /** `count` channels of `frames` samples, in shared memory if the caller asked for it. */
+  allocate(count: number, frames: number): Float32Array[];
 }
 
 function resolveOptions(opts: DecodeOptions | undefined): Resolved {
@@ -95,6 +104,8 @@ function resolveOptions(opts: DecodeOptions | undefined): Resolved {
     timeoutS,
     deadlineMs: Date.now() + timeoutS * 1000,
     onFrames: o.onFrames ? (c, from, to) => o.onFrames!(c, from, to) : () => undefined,
+    allocate: (count, frames) =>
+      Array.from({ length: count }, () => (o.sharedChannels ? new Float32Array(new SharedArrayBuffer(4 * frames)) : new Float32Array(frames))),
     progress(f) {
       const c = Math.min(1, Math.max(last, f));
       if (c === last && c !== 0) return;
@@ -244,7 +255,7 @@ async function decodeWavFile(fh: FileHandle, head: Uint8Array, size: number, r: 
   checkWavHeader(h, fileBytes, r);
   r.progress(0.01);
   const n = h.framesPresent;
-  const channels = Array.from({ length: h.channelCount }, () => new Float32Array(n));
+  const channels = r.allocate(h.channelCount, n);
   const blockFrames = Math.max(1, Math.min(WAV_CHUNK_FRAMES, Math.floor(WAV_BLOCK_BYTES / h.blockAlign)));
   const bufBytes = Math.min(n, blockFrames) * h.blockAlign;
   const bufs = [new Uint8Array(bufBytes), new Uint8Array(bufBytes)];
@@ -318,7 +329,7 @@ async function decodeCore(bytes: Uint8Array, r: Resolved, owned: boolean, p0: nu
 async function decodeWav(bytes: Uint8Array, r: Resolved, p0: number): Promise<DecodedClip> {
   const h = parseWavHeader(bytes);
   checkWavHeader(h, bytes.length, r);
-  const channels = Array.from({ length: h.channelCount }, () => new Float32Array(h.framesPresent));
+  const channels = r.allocate(h.channelCount, h.framesPresent);
   for (let from = 0; from < h.framesPresent; from += WAV_CHUNK_FRAMES) {
     const to = Math.min(h.framesPresent, from + WAV_CHUNK_FRAMES);
     const bad = readWavFrames(bytes, h, channels, from, to);

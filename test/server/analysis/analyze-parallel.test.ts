@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { AnalysisWorker, type TaskTiming, analyzeClipParallel, startAnalysisWorker } from '../../../server/analysis/analyze-parallel.ts';
 import { analyzeClip } from '../../../shared/analysis/analyze-clip.ts';
-import type { AudioClip } from '../../../shared/audio/clip.ts';
+import { type AudioClip, modulationSource } from '../../../shared/audio/clip.ts';
 
 const FS = 44100;
 
@@ -123,5 +123,55 @@ describe('fallbacks and errors', () => {
     await expect(analyzeClipParallel({ sampleRate: FS, channels: [clip.channels[0]] }, { channel: 'right', worker: w })).rejects.toThrow(/mono/);
     expect(w.available).toBe(false);
     await expect(analyzeClipParallel({ sampleRate: FS, channels: [] })).rejects.toThrow(RangeError);
+  });
+});
+
+describe('donated channels: the mix written over channel 0 once the channel tasks have read it', () => {
+  const copy = (c: AudioClip): AudioClip => ({ sampleRate: c.sampleRate, channels: c.channels.map((x) => x.slice()) });
+  const clip = synth(1, true);
+  const expected = analyzeClip(copy(clip));
+  const mix = modulationSource(copy(clip), 'mix');
+
+  it('shared channels: analyzeClip’s result; channel 0 then holds the mix, written after every channel task', async () => {
+    const given = synth(1, true);
+    const timings: TaskTiming[] = [];
+    const w = startAnalysisWorker();
+    await w.ready;
+    expect(await analyzeClipParallel(given, { worker: w, donateChannels: true, onTask: (t) => timings.push(t) })).toEqual(expected);
+    expect(Array.from(given.channels[0])).toEqual(Array.from(mix));
+    expect(Array.from(given.channels[1])).toEqual(Array.from(clip.channels[1])); // only channel 0 is reused
+    const mixAt = timings.find((t) => t.task === 'mix')!;
+    for (const t of timings.filter((x) => ['levels', 'true peak', 'loudness'].includes(x.task))) expect(mixAt.startMs).toBeGreaterThanOrEqual(t.endMs);
+    for (const t of timings.filter((x) => ['pitch', 'spectrum', 'frames', 'histogram', 'source levels'].includes(x.task))) expect(t.startMs).toBeGreaterThanOrEqual(mixAt.endMs);
+  });
+
+  it('without a worker the mix goes over channel 0 in place too; a single-channel source leaves the clip alone', async () => {
+    const alone = copy(clip);
+    expect(await analyzeClipParallel(alone, { worker: new AnalysisWorker(null), donateChannels: true })).toEqual(expected);
+    expect(Array.from(alone.channels[0])).toEqual(Array.from(mix));
+    const left = synth(1, true);
+    expect(await analyzeClipParallel(left, { channel: 'left', donateChannels: true })).toEqual(analyzeClip(copy(clip), { channel: 'left' }));
+    expect(Array.from(left.channels[0])).toEqual(Array.from(clip.channels[0]));
+  });
+
+  // The test doubles claim the first task of the list, here a channel task, and exit or report it failed.
+  for (const [file, what] of [['claim-and-exit.cjs', 'dies holding a channel task'], ['claim-and-fail.cjs', 'reports a channel task failed']]) {
+    it(`a worker that ${what}: that task is run here before the mix is written`, async () => {
+      const given = synth(1, true);
+      const w = new AnalysisWorker(new URL(`../../fixtures/analysis/${file}`, import.meta.url));
+      expect(await w.ready).toBe(true);
+      expect(await analyzeClipParallel(given, { worker: w, donateChannels: true })).toEqual(expected);
+      expect(Array.from(given.channels[0])).toEqual(Array.from(mix));
+    });
+  }
+
+  it('bad samples: analyzeClip’s error, and channel 0 is left as it was', async () => {
+    const bad = synth(1, true);
+    bad.channels[1][700] = Number.NaN;
+    const before = bad.channels[0].slice();
+    const w = startAnalysisWorker();
+    await w.ready;
+    await expect(analyzeClipParallel(bad, { worker: w, donateChannels: true })).rejects.toThrow(/channel 1 contains NaN/);
+    expect(Array.from(bad.channels[0])).toEqual(Array.from(before));
   });
 });
