@@ -24,9 +24,11 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
     io.err(`coilcue: unknown command "${name}"; known: ${Object.keys(commands).join(', ')}\n`);
     return EXIT_BAD_INPUT;
   }
+  const wantsHelp = rest.includes('--help') || rest.includes('-h');
   try {
+    if (!wantsHelp) entry.prestart?.();
     const command = await entry.load();
-    if (rest.includes('--help') || rest.includes('-h')) {
+    if (wantsHelp) {
       io.out(`${entry.summary}\nUsage: ${command.usage}\n${SAFETY_LINE}\n`);
       return 0;
     }

@@ -1,9 +1,9 @@
 /**
- * Child process of the benchmark: decodes and analyses one file the way the command line does
- * (server/cli/commands/analyze.ts, loadAndAnalyze: the analysis worker started before decoding, the
- * modulation mix written into shared memory while decoding, analyzeClipParallel), then prints its
- * own timings and peak resident memory as JSON. Run alone so the memory figure is the analysis's,
- * not the generator's.
+ * Child process of the benchmark: decodes and analyses one file the way the analyze command does
+ * (server/cli/commands/analyze.ts, analyzeFile: the analysis worker started before decoding, the
+ * channels decoded into shared memory, analyzeClipParallel with the channels given up, so the mix
+ * goes over channel 0), then prints its own timings and peak resident memory as JSON. Run alone so
+ * the memory figure is the analysis's, not the generator's.
  *
  * `--sequential` times analyzeClip on one thread instead (no worker), for comparison.
  * Output: decodeMs, analyzeMs, totalMs (from before the worker start to the result), stagesMs
@@ -11,7 +11,6 @@
  * timeline (each task's start and end, ms from the start of the analysis), durationS, maxRssMiB.
  */
 import { analyzeClipParallel, startAnalysisWorker } from '../../server/analysis/analyze-parallel.ts';
-import { sharedSourceWriter } from '../../server/analysis/shared-source.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 
@@ -21,8 +20,7 @@ export async function main(): Promise<void> {
   const sequential = process.argv.includes('--sequential');
   const t0 = performance.now();
   const worker = sequential ? undefined : startAnalysisWorker();
-  const mix = sequential ? undefined : sharedSourceWriter('mix');
-  const clip = await decodeAudioFile(file, { onFrames: mix?.onFrames });
+  const clip = await decodeAudioFile(file, { sharedChannels: !sequential });
   const t1 = performance.now();
   const stages: Record<string, number> = {};
   const timeline: string[] = [];
@@ -41,7 +39,7 @@ export async function main(): Promise<void> {
     const origin = performance.timeOrigin + t1;
     await analyzeClipParallel(clip, {
       worker,
-      sharedSource: mix?.source() ?? undefined,
+      donateChannels: true,
       onTask: (t) => {
         stages[`${t.thread}:${t.task}`] = t.endMs - t.startMs;
         timeline.push(`${t.thread} ${t.task} ${(t.startMs - origin).toFixed(0)}–${(t.endMs - origin).toFixed(0)}`);

@@ -1,3 +1,4 @@
+import { prestartAnalysisWorker } from '../../analysis/worker-handle.ts';
 import type { Command } from '../io.ts';
 
 /**
@@ -8,6 +9,8 @@ import type { Command } from '../io.ts';
 export interface CommandEntry {
   summary: string;
   load(): Promise<Command>;
+  /** Work to start before the module loads: commands that analyse a clip start the analysis worker. */
+  prestart?(): void;
 }
 
 /**
@@ -30,6 +33,7 @@ function lazy<M>(viaRequire: () => M, viaImport: () => Promise<M>, take: (m: M) 
 /** Every command of the command line, by the name typed after `coilcue`. */
 export const commands: Record<string, CommandEntry> = {
   analyze: {
+    prestart: prestartAnalysisWorker,
     summary: 'measure a clip: levels, true peak, loudness, spectrum, pitch',
     load: lazy(() => require('./analyze.ts') as typeof import('./analyze.ts'), () => import('./analyze.ts'), (m) => m.analyzeCommand),
   },
@@ -38,6 +42,7 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./coil.ts') as typeof import('./coil.ts'), () => import('./coil.ts'), (m) => m.coilCommand),
   },
   plan: {
+    prestart: prestartAnalysisWorker,
     summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
     load: lazy(() => require('./plan.ts') as typeof import('./plan.ts'), () => import('./plan.ts'), (m) => m.planCommand),
   },
@@ -46,10 +51,12 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./demo.ts') as typeof import('./demo.ts'), () => import('./demo.ts'), (m) => m.demoCommand),
   },
   render: {
+    prestart: prestartAnalysisWorker,
     summary: 'write the coil-ready modulation WAV (gain, pre-emphasis, limiter) and re-check every limit on it',
     load: lazy(() => require('./render.ts') as typeof import('./render.ts'), () => import('./render.ts'), (m) => m.renderCommand),
   },
   preview: {
+    prestart: prestartAnalysisWorker,
     summary: 'hear and see beforehand what the coil makes of a clip: arc-sound WAV and modulation preview',
     load: lazy(() => require('./preview.ts') as typeof import('./preview.ts'), () => import('./preview.ts'), (m) => m.previewCommand),
   },
