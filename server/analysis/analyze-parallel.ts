@@ -64,7 +64,7 @@ export { AnalysisWorker, prestartAnalysisWorker, startAnalysisWorker } from './w
  * making the mix 80–150. The channel tasks come first: the worker can run them while this thread
  * writes the mix, which the source tasks wait for; then the longest first (Graham 1969).
  */
-const ORDER_ALL: readonly AnalysisTask[] = ['loudness', 'true peak', 'pitch', 'spectrum', 'levels', 'frames', 'histogram', 'source levels'];
+const ORDER_ALL: readonly AnalysisTask[] = ['loudness', 'true peak', 'pitch', 'spectrum', 'levels', 'frames', 'source levels'];
 /** The same without the channel tasks, for channels the worker cannot read (not in shared memory). */
 const ORDER_SOURCE: readonly AnalysisTask[] = ORDER_ALL.filter((t) => !(CHANNEL_TASKS as readonly string[]).includes(t));
 /**
@@ -265,6 +265,6 @@ async function analyzeShared(
   for (const t of tasks) if (outputs[t] === undefined) runHere(t);
   opts.onProgress?.(1, 'done');
   const o = outputs as Required<TaskOutputs>;
-  const part = channelFigures(s, o.levels, o['true peak'], o.loudness, outputs['source levels'], o.frames, o.histogram);
+  const part = channelFigures(s, o.levels, o['true peak'], o.loudness, outputs['source levels'], o.frames);
   return combineAnalysis(clip, s, part, { ...o.spectrum, pitch: o.pitch });
 }

@@ -77,7 +77,7 @@ export interface ClipAnalysis {
 }
 
 /** Stages of the channel part, in the order analyzeClip runs them. */
-export const CHANNEL_STAGES = ['levels', 'true peak', 'loudness', 'frames', 'histogram'] as const;
+export const CHANNEL_STAGES = ['levels', 'true peak', 'loudness', 'frames'] as const;
 /** Stages of the spectrum part, in the order analyzeClip runs them (after the channel part). */
 export const SPECTRUM_STAGES = ['spectrum', 'pitch'] as const;
 const STAGES = [...CHANNEL_STAGES, ...SPECTRUM_STAGES] as const;
@@ -131,7 +131,7 @@ export function resolveAnalyzeSettings(clip: AudioClip, opts: AnalyzeOptions = {
 /**
  * The channel part of the analysis: levels (all channels, each channel, the modulation source),
  * true peak, BS.1770 loudness, and the source's frame statistics, envelopes and magnitude histogram
- * (tasks.ts: levels, true peak, source levels, loudness, frames, histogram). Pure; `onStage` is
+ * (tasks.ts: levels, true peak, source levels, loudness, frames with the histogram). Pure; `onStage` is
  * called with each stage's name (CHANNEL_STAGES) as it starts.
  *
  * @param source the modulation source, `modulationSource(clip, s.channel)`, or an array holding the
@@ -155,9 +155,7 @@ export function analyzeChannelPart(
   const loudness = runChannelTask('loudness', clip);
   onStage?.('frames');
   const frames = runSourceTask('frames', source, sampleRate, s);
-  onStage?.('histogram');
-  const histogram = runSourceTask('histogram', source, sampleRate, s);
-  return channelFigures(s, levels, tp, loudness, sourceLevels, frames, histogram);
+  return channelFigures(s, levels, tp, loudness, sourceLevels, frames);
 }
 
 /**
@@ -205,7 +203,7 @@ export function combineAnalysis(clip: AudioClip, s: AnalyzeSettings, part: Chann
  * Analyses a clip (module comment): {@link analyzeChannelPart} then {@link analyzeSpectrumPart} on
  * the modulation source, in this thread. Throws RangeError for a clip with no channels or no
  * samples (the decoder rejects those with an InputError before this is reached), or channel
- * 'right' of a mono clip. `onProgress` gets (k/7, name of stage k) as each of the seven stages
+ * 'right' of a mono clip. `onProgress` gets (k/6, name of stage k) as each of the six stages
  * starts, then (1, 'done').
  *
  * @example analyzeClip(synthDemoClip('harbour-lights')).loudness.integratedLufs // ≈ −16 LUFS

@@ -8,9 +8,9 @@
  * Float32Array, which is what a worker thread gets (in shared memory).
  */
 import type { AudioClip } from '../audio/clip.ts';
-import { frameStatsWithPeakEnvelope, rmsEnvelope } from '../dsp/envelope.ts';
+import { rmsEnvelope, sourceStatsPass } from '../dsp/envelope.ts';
 import type { FrameStats } from '../dsp/frame-stats.ts';
-import { type MagnitudeHistogram, magnitudeHistogram } from '../dsp/histogram.ts';
+import type { MagnitudeHistogram } from '../dsp/histogram.ts';
 import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/level.ts';
 import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
 import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
@@ -25,7 +25,7 @@ export const CHANNEL_TASKS = ['levels', 'true peak', 'loudness'] as const;
 export type ChannelTask = (typeof CHANNEL_TASKS)[number];
 
 /** Tasks that read only the modulation source. */
-export const SOURCE_TASKS = ['source levels', 'frames', 'histogram', 'spectrum', 'pitch'] as const;
+export const SOURCE_TASKS = ['source levels', 'frames', 'spectrum', 'pitch'] as const;
 export type SourceTask = (typeof SOURCE_TASKS)[number];
 
 export type AnalysisTask = ChannelTask | SourceTask;
@@ -37,9 +37,8 @@ export interface TaskOutputs {
   loudness: LoudnessReport;
   /** Level figures of the source alone. */
   'source levels': ChannelLevels;
-  /** Frame statistics and the two envelopes built on them. */
-  frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array };
-  histogram: MagnitudeHistogram;
+  /** Frame statistics, the two envelopes built on them, and the magnitude histogram (one pass, sourceStatsPass). */
+  frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array; histogram: MagnitudeHistogram };
   /** Welch PSD, the features read from it, and the display spectrogram (from the same FFTs when the clip is long enough). */
   spectrum: Omit<SpectrumFigures, 'pitch'>;
   pitch: PitchTrack;
@@ -76,7 +75,7 @@ export function runChannelTask<T extends ChannelTask>(task: T, clip: AudioClip):
 
 /**
  * Runs one source task on the modulation source: its levels (measureLevels), frame statistics with
- * the peak and RMS envelopes, magnitude histogram, Welch spectrum with its features (Welch 1967),
+ * the peak and RMS envelopes and the magnitude histogram (one pass), Welch spectrum with its features (Welch 1967),
  * display spectrogram, or YIN pitch track (de Cheveigné & Kawahara 2002). The choices analyzeClip
  * makes are here: a spectrogram read off the Welch segments when the clip fills every column with
  * them (≥ ~93 s at 44.1 kHz), else of two FFT frames of its own per column (welchSpectrogram), and a
@@ -98,14 +97,11 @@ export function runSourceTask<T extends SourceTask>(
       out['source levels'] = measureLevels([source], { sampleRate }).overall;
       break;
     case 'frames': {
-      const { frames, peak } = frameStatsWithPeakEnvelope(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
+      const { frames, peak, histogram } = sourceStatsPass(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
       const rms = rmsEnvelope(frames, { windowS: s.rmsWindowS });
-      out.frames = { frames, peak, rms };
+      out.frames = { frames, peak, rms, histogram };
       break;
     }
-    case 'histogram':
-      out.histogram = magnitudeHistogram(source);
-      break;
     case 'spectrum': {
       const { welch, spectrogram } = welchSpectrogram(source, sampleRate, { welchSize: s.fftSize, ownFramesPerColumn: 2 });
       out.spectrum = {
@@ -142,7 +138,7 @@ export const sourceIsTheClip = (clip: AudioClip, source: Float32Array): boolean 
  * oversampling filter is linear, so |mean of channels| ≤ max |channel| at every oversampled
  * instant) that spares a third filter pass. `sourceLevels` absent: the source is the clip itself.
  *
- * @example channelFigures(s, out.levels, out['true peak'], out.loudness, out['source levels'], out.frames, out.histogram).level.modulation.truePeakDbtp
+ * @example channelFigures(s, out.levels, out['true peak'], out.loudness, out['source levels'], out.frames).level.modulation.truePeakDbtp
  */
 export function channelFigures(
   s: AnalyzeSettings,
@@ -151,7 +147,6 @@ export function channelFigures(
   loudness: LoudnessReport,
   sourceLevels: ChannelLevels | undefined,
   frames: TaskOutputs['frames'],
-  histogram: MagnitudeHistogram,
 ): ChannelFigures {
   const which = s.channel;
   const sourceTp = which === 'mix' ? tp.truePeakDbtp : ampToDb(tp.perChannelLinear[which === 'right' ? 1 : 0]);
@@ -165,6 +160,6 @@ export function channelFigures(
     loudness,
     frames: frames.frames,
     envelope: { attackS: s.attackS, releaseS: s.releaseS, rmsWindowS: s.rmsWindowS, peak: frames.peak, rms: frames.rms },
-    histogram,
+    histogram: frames.histogram,
   };
 }

@@ -48,8 +48,12 @@ export interface HistogramOptions {
   into?: MagnitudeHistogram;
 }
 
-interface Layout {
+/** A validated bin layout with its lookup tables (see the module comment); made once per layout and cached. */
+export interface HistogramLayout {
   key: string;
+  binDb: number;
+  minDb: number;
+  maxDb: number;
   nBins: number;
   edges: Float64Array;
   shift: number;
@@ -85,9 +89,9 @@ function bucketOf(v: number, minDb: number, binDb: number, edges: Float64Array):
   return i;
 }
 
-let cached: Layout | undefined;
+let cached: HistogramLayout | undefined;
 
-function layoutFor(binDb: number, minDb: number, maxDb: number): Layout {
+function layoutFor(binDb: number, minDb: number, maxDb: number): HistogramLayout {
   const key = `${binDb}|${minDb}|${maxDb}`;
   if (cached?.key === key) return cached;
   const fn = 'magnitudeHistogram';
@@ -128,7 +132,7 @@ function layoutFor(binDb: number, minDb: number, maxDb: number): Layout {
       throw new Error(`magnitudeHistogram: internal error, slice ${k} spans buckets ${bLo}…${bHi}`);
     }
   }
-  cached = { key, nBins, edges, shift, keyLo, tab, edgeBits };
+  cached = { key, binDb, minDb, maxDb, nBins, edges, shift, keyLo, tab, edgeBits };
   return cached;
 }
 
@@ -140,7 +144,7 @@ const CHUNK = 1 << 30;
  * NaN. The straddle test is branch-free ((edge − b − 1) >>> 31 is 1 exactly when b ≥ edge): a
  * data-dependent branch there mispredicts about half the time and doubles the run time.
  */
-function countMagnitudeBits(bits32: Int32Array, from: number, to: number, L: Layout, acc: Int32Array): number {
+function countMagnitudeBits(bits32: Int32Array, from: number, to: number, L: HistogramLayout, acc: Int32Array): number {
   const { tab, edgeBits, shift, keyLo } = L;
   const tabLen = tab.length;
   const aboveAt = L.nBins + 1;
@@ -172,6 +176,32 @@ function countMagnitudeBits(bits32: Int32Array, from: number, to: number, L: Lay
  * @example magnitudeHistogram(x).counts.length // 12600 bins of 0.01 dB from −120 to +6 dBFS
  */
 export function magnitudeHistogram(signal: Float32Array, opts: HistogramOptions = {}): MagnitudeHistogram {
+  const L = histogramLayout(opts);
+  // acc: [below, bin 0 … bin nBins−1, above, zeros]; Int32 counts (fast in V8), so the signal is
+  // taken in chunks of 2^30 samples and each chunk's counts are added to the float64 result.
+  const acc = new Int32Array(L.nBins + 3);
+  const h = opts.into ?? emptyHistogram(L);
+  const bits32 = new Int32Array(signal.buffer, signal.byteOffset, signal.length);
+  const n = signal.length;
+  for (let from = 0; from < n; from += CHUNK) {
+    const to = Math.min(n, from + CHUNK);
+    acc.fill(0);
+    const r = countMagnitudeBits(bits32, from, to, L, acc);
+    if (r < 0) throw new RangeError(`magnitudeHistogram: signal has a NaN sample at index ${-1 - r}`);
+    addCounts(h, acc, r, to - from);
+  }
+  return h;
+}
+
+/**
+ * The layout of `opts` (binDb, minDb, maxDb; defaults 0.01, −120, +6), checked, with the tables a
+ * counting loop needs; `opts.into` must match it. For passes that count magnitudes while doing
+ * other work on the same samples; the counting itself is exactly countMagnitudeBits'.
+ *
+ * @throws RangeError for a bad layout, or an `into` of another layout
+ * @example const L = histogramLayout({}); // 12 600 bins of 0.01 dB
+ */
+export function histogramLayout(opts: HistogramOptions = {}): HistogramLayout {
   const binDb = opts.binDb ?? 0.01;
   const minDb = opts.minDb ?? -120;
   const maxDb = opts.maxDb ?? 6;
@@ -180,41 +210,33 @@ export function magnitudeHistogram(signal: Float32Array, opts: HistogramOptions 
   if (into && (into.binDb !== binDb || into.minDb !== minDb || into.maxDb !== maxDb || into.counts.length !== L.nBins)) {
     throw new RangeError('magnitudeHistogram: `into` has a different layout (binDb, minDb, maxDb) from the one asked for');
   }
-  const nBins = L.nBins;
-  // acc: [below, bin 0 … bin nBins−1, above, zeros]; Int32 counts (fast in V8), so the signal is
-  // taken in chunks of 2^30 samples and each chunk's counts are added to the float64 result.
-  const acc = new Int32Array(nBins + 3);
-  const h: MagnitudeHistogram = into ?? {
-    binDb,
-    minDb,
-    maxDb,
-    counts: new Float64Array(nBins),
-    zeros: 0,
-    below: 0,
-    above: 0,
-    total: 0,
-    peak: 0,
-  };
-  const bits32 = new Int32Array(signal.buffer, signal.byteOffset, signal.length);
-  const n = signal.length;
-  let peakBits = 0;
-  for (let from = 0; from < n; from += CHUNK) {
-    const to = Math.min(n, from + CHUNK);
-    acc.fill(0);
-    const r = countMagnitudeBits(bits32, from, to, L, acc);
-    if (r < 0) throw new RangeError(`magnitudeHistogram: signal has a NaN sample at index ${-1 - r}`);
-    if (r > peakBits) peakBits = r;
-    const c = h.counts;
-    for (let i = 0; i < nBins; i++) c[i] += acc[i + 1];
-    h.below += acc[0];
-    h.above += acc[nBins + 1];
-    h.zeros += acc[nBins + 2];
-  }
-  const peak = valueOfBits(peakBits);
-  h.total += n;
-  if (peak > h.peak) h.peak = peak;
-  return h;
+  return L;
 }
+
+/** An empty histogram of layout L. @example emptyHistogram(histogramLayout({})).total // 0 */
+export function emptyHistogram(L: HistogramLayout): MagnitudeHistogram {
+  const { binDb, minDb, maxDb } = L;
+  return { binDb, minDb, maxDb, counts: new Float64Array(L.nBins), zeros: 0, below: 0, above: 0, total: 0, peak: 0 };
+}
+
+/**
+ * Adds one run's counts to `h`: acc is [below, bin 0 … bin nBins−1, above, zeros] as the counting
+ * loop fills it, peakBits the float32 bits of the run's highest magnitude, n its number of samples.
+ */
+export function addCounts(h: MagnitudeHistogram, acc: Int32Array, peakBits: number, n: number): void {
+  const nBins = h.counts.length;
+  const c = h.counts;
+  for (let i = 0; i < nBins; i++) c[i] += acc[i + 1];
+  h.below += acc[0];
+  h.above += acc[nBins + 1];
+  h.zeros += acc[nBins + 2];
+  h.total += n;
+  const peak = valueOfBits(peakBits);
+  if (peak > h.peak) h.peak = peak;
+}
+
+/** Samples a counting loop may take at once: its Int32 counts cannot overflow below this. */
+export const HISTOGRAM_RUN_MAX = CHUNK;
 
 /**
  * Fraction (0…1) of samples with |x| > levelLinear, from the histogram alone. In the bin holding

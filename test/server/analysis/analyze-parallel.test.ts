@@ -38,8 +38,8 @@ describe('analyzeClipParallel gives analyzeClip’s result exactly', () => {
     expect(await worker.ready).toBe(true); // started early, as the command line does, so it can take part
     const got = await analyzeClipParallel(shared, { worker, onTask: (t) => timings.push(t) });
     expect(got).toEqual(analyzeClip(shared));
-    // nine tasks and the mix, each once; the worker took part (it may run channel tasks too)
-    expect(timings.map((t) => t.task).sort()).toEqual(['frames', 'histogram', 'levels', 'loudness', 'mix', 'pitch', 'source levels', 'spectrum', 'true peak']);
+    // eight tasks and the mix, each once; the worker took part (it may run channel tasks too)
+    expect(timings.map((t) => t.task).sort()).toEqual(['frames', 'levels', 'loudness', 'mix', 'pitch', 'source levels', 'spectrum', 'true peak']);
     expect(timings.some((t) => t.thread === 'worker')).toBe(true);
     for (const t of timings) expect(t.endMs).toBeGreaterThanOrEqual(t.startMs);
   });
@@ -142,7 +142,7 @@ describe('donated channels: the mix written over channel 0 once the channel task
     expect(Array.from(given.channels[1])).toEqual(Array.from(clip.channels[1])); // only channel 0 is reused
     const mixAt = timings.find((t) => t.task === 'mix')!;
     for (const t of timings.filter((x) => ['levels', 'true peak', 'loudness'].includes(x.task))) expect(mixAt.startMs).toBeGreaterThanOrEqual(t.endMs);
-    for (const t of timings.filter((x) => ['pitch', 'spectrum', 'frames', 'histogram', 'source levels'].includes(x.task))) expect(t.startMs).toBeGreaterThanOrEqual(mixAt.endMs);
+    for (const t of timings.filter((x) => ['pitch', 'spectrum', 'frames', 'source levels'].includes(x.task))) expect(t.startMs).toBeGreaterThanOrEqual(mixAt.endMs);
   });
 
   it('without a worker the mix goes over channel 0 in place too; a single-channel source leaves the clip alone', async () => {

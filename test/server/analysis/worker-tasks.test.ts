@@ -25,12 +25,12 @@ function job(tasks: AnalysisJob['tasks'], ready = 1): AnalysisJob {
 describe('runAnalysisJob', () => {
   it('claims every task in order, posts outputs equal to running them directly, then done', () => {
     const replies: WorkerReply[] = [];
-    const j = job(['levels', 'histogram', 'pitch']);
+    const j = job(['levels', 'source levels', 'pitch']);
     runAnalysisJob(j, (m) => replies.push(m));
     expect(replies.map((r) => r.type)).toEqual(['result', 'result', 'result', 'done']);
-    const [levels, histogram, pitch] = replies as Extract<WorkerReply, { type: 'result' }>[];
+    const [levels, sourceLevels, pitch] = replies as Extract<WorkerReply, { type: 'result' }>[];
     expect(levels.output).toEqual(runChannelTask('levels', clip));
-    expect(histogram.output).toEqual(runSourceTask('histogram', source, FS, settings));
+    expect(sourceLevels.output).toEqual(runSourceTask('source levels', source, FS, settings));
     expect(pitch.output).toEqual(runSourceTask('pitch', source, FS, settings));
     // a 440 Hz sine: YIN (de Cheveigné & Kawahara 2002) reads 440 Hz; 0.5 % is the pitch module's tolerance
     expect(Math.abs((pitch.output as { medianHz: number }).medianHz / 440 - 1)).toBeLessThan(0.005);
@@ -39,7 +39,7 @@ describe('runAnalysisJob', () => {
 
   it('takes nothing the main thread has claimed already', () => {
     const replies: WorkerReply[] = [];
-    const j = job(['levels', 'histogram', 'frames']);
+    const j = job(['levels', 'source levels', 'frames']);
     j.sync[0] = 2; // the main thread took the first two
     runAnalysisJob(j, (m) => replies.push(m));
     expect(replies.map((r) => (r.type === 'result' ? r.task : r.type))).toEqual(['frames', 'done']);
@@ -47,12 +47,12 @@ describe('runAnalysisJob', () => {
 
   it('reports a task that throws and stops claiming, leaving the rest to the main thread', () => {
     const replies: WorkerReply[] = [];
-    const j = job(['spectrum', 'histogram']);
+    const j = job(['spectrum', 'source levels']);
     j.settings = { ...settings, fftSize: 1000 }; // not a power of two: welchPsd throws RangeError
     runAnalysisJob(j, (m) => replies.push(m));
     expect(replies[0]).toMatchObject({ type: 'failed', task: 'spectrum', message: expect.stringMatching(/power of two/) });
     expect(replies.slice(1)).toEqual([{ type: 'done' }]);
-    expect(Atomics.load(j.sync, 0)).toBe(1); // 'histogram' is still unclaimed
+    expect(Atomics.load(j.sync, 0)).toBe(1); // 'source levels' is still unclaimed
   });
 });
 
@@ -69,7 +69,7 @@ describe('in a worker thread', () => {
   it('source tasks wait until the main thread says the source is written', async () => {
     const w = new AnalysisWorker();
     expect(await w.ready).toBe(true);
-    const j = job(['histogram'], 0);
+    const j = job(['source levels'], 0);
     const replies: string[] = [];
     let done: () => void = () => undefined;
     const finished = new Promise<void>((r) => (done = r));

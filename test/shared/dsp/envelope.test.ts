@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { createPeakFollower, frameStatsWithPeakEnvelope, onePoleCoefficient, peakEnvelopeFrames } from '../../../shared/dsp/envelope.ts';
+import { createPeakFollower, sourceStatsPass, onePoleCoefficient, peakEnvelopeFrames } from '../../../shared/dsp/envelope.ts';
 import { computeFrameStats, frameCount, frameStart } from '../../../shared/dsp/frame-stats.ts';
+import { magnitudeHistogram } from '../../../shared/dsp/histogram.ts';
 
 const FS = 48000;
 
@@ -133,7 +134,7 @@ describe('peakEnvelopeFrames', () => {
   });
 });
 
-describe('frameStatsWithPeakEnvelope', () => {
+describe('sourceStatsPass: frame statistics, peak envelope and magnitude histogram in one pass', () => {
   /** Deterministic uniform noise in [−amp, amp) (a 32-bit LCG, Numerical Recipes constants). */
   function noise(n: number, seed: number, amp: number): Float32Array {
     let st = seed >>> 0;
@@ -145,10 +146,13 @@ describe('frameStatsWithPeakEnvelope', () => {
     return out;
   }
 
-  it('equals computeFrameStats and peakEnvelopeFrames exactly, on any frame layout and length', () => {
+  it('equals computeFrameStats, peakEnvelopeFrames and magnitudeHistogram exactly, on any frame layout and length', () => {
     const bursts = noise(44100, 5, 0.8).map((v, i) => (Math.floor(i / 3000) % 2 === 0 ? v : v * 0.01));
+    // zeros, magnitudes below −120 dBFS, above +6 dBFS and ±0 exercise every branch of the count
+    const edges = Float32Array.of(0, -0, 1e-7, -3e-8, 2.5, -4, 1, -1, 0.5, 1e-6);
     const cases: [Float32Array, number, number][] = [
       [bursts, 44100, 0.001],
+      [edges, 8000, 0.001],
       [bursts.subarray(0, 1003), 44100, 0.0025],
       [noise(7, 9, 1), 48000, 0.001],
       [Float32Array.of(0.5), 8000, 0.001],
@@ -156,16 +160,19 @@ describe('frameStatsWithPeakEnvelope', () => {
     ];
     for (const [x, fs, frameS] of cases) {
       const opts = { attackS: 0.001, releaseS: 0.05, frameS };
-      const { frames, peak } = frameStatsWithPeakEnvelope(x, fs, opts);
+      const { frames, peak, histogram } = sourceStatsPass(x, fs, opts);
       expect(frames).toEqual(computeFrameStats(x, fs, { frameS }));
       expect(Array.from(peak)).toEqual(Array.from(peakEnvelopeFrames(x, fs, opts)));
+      expect(histogram).toEqual(magnitudeHistogram(x));
+      const coarse = sourceStatsPass(x, fs, { ...opts, histogram: { binDb: 0.5, minDb: -60, maxDb: 0 } }).histogram;
+      expect(coarse).toEqual(magnitudeHistogram(x, { binDb: 0.5, minDb: -60, maxDb: 0 }));
     }
   });
 
   it('rejects NaN samples naming the frame, and bad follower options', () => {
     const x = new Float32Array(441);
     x[200] = Number.NaN;
-    expect(() => frameStatsWithPeakEnvelope(x, 44100, { attackS: 0.001, releaseS: 0.05 })).toThrow(/NaN or infinite sample in frame 4/);
-    expect(() => frameStatsWithPeakEnvelope(new Float32Array(10), 44100, { attackS: -1, releaseS: 0.05 })).toThrow(/attackS/);
+    expect(() => sourceStatsPass(x, 44100, { attackS: 0.001, releaseS: 0.05 })).toThrow(/NaN or infinite sample in frame 4/);
+    expect(() => sourceStatsPass(new Float32Array(10), 44100, { attackS: -1, releaseS: 0.05 })).toThrow(/attackS/);
   });
 });
