@@ -3,7 +3,7 @@
 // Why a CommonJS file: Node 20 does not carry a loader into worker threads, and tsx's ESM hooks in
 // a worker start one more hooks thread (another isolate, measured ~4 MiB more). tsx's CommonJS
 // hook (`tsx/cjs/api`) works inside this thread alone: once registered, require() compiles the
-// TypeScript of shared/ and server/ (ES module syntax included), under `node bin/coilcue.js`,
+// TypeScript of shared/ and server/ (ES module syntax included), under `node bin/coilcue.cjs`,
 // `node --import tsx` and Vitest alike. If tsx cannot load, this throws and the main thread falls
 // back to analysing alone.
 'use strict';

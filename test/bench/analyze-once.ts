@@ -14,7 +14,7 @@ import { analyzeClipParallel, startAnalysisWorker } from '../../server/analysis/
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 
-/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.js runs the product). */
+/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.cjs runs the product). */
 export async function main(): Promise<void> {
   const file = process.argv[2];
   const sequential = process.argv.includes('--sequential');

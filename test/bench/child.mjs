@@ -1,4 +1,4 @@
-// Starts a benchmark child the way bin/coilcue.js starts the product: tsx's CommonJS hook in this
+// Starts a benchmark child the way bin/coilcue.cjs starts the product: tsx's CommonJS hook in this
 // thread (no loader thread), then the TypeScript module's main(). Usage: node child.mjs <file.ts> args…
 import { createRequire } from 'node:module';
 import { resolve } from 'node:path';

@@ -14,7 +14,7 @@ import { toPlanClip } from '../../shared/plan/plan-clip.ts';
 import { planClipReport } from '../../shared/plan/report.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 
-/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.js runs the product). */
+/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.cjs runs the product). */
 export async function main(): Promise<void> {
   const clip = await decodeAudioFile(process.argv[2]);
   const analysis = analyzeClip(clip);

@@ -2,7 +2,7 @@
  * `npm run bench`: speed and memory of the analysis engine on a 5-minute 44.1 kHz stereo 16-bit
  * WAV of our own synthesised demo music, written to a temporary folder.
  *
- * The measured figure is the command a user runs, end to end: `node bin/coilcue.js analyze <file>
+ * The measured figure is the command a user runs, end to end: `node bin/coilcue.cjs analyze <file>
  * --json`, from spawning the process to its exit (Node's start-up, loading the modules, decoding,
  * the analysis on both cores, the JSON written), with its peak RSS reported by an exit hook
  * preloaded with --require (rss-on-exit.cjs). Where ffmpeg is on PATH, its EBU R 128 loudness pass
@@ -37,7 +37,7 @@ try {
   await writeWavAtomic(wav, encodeWav(synthLongDemo(DURATION_S, 44100), { format: 's16', seed: 1 }));
   console.log(`generated ${DURATION_S} s stereo 44.1 kHz 16-bit WAV in ${((performance.now() - t) / 1000).toFixed(2)} s`);
 
-  const bin = join(here, '..', '..', 'bin', 'coilcue.js');
+  const bin = join(here, '..', '..', 'bin', 'coilcue.cjs');
   const rssFile = join(dir, 'rss');
   /** The executable end to end: wall seconds from spawn to exit, peak RSS in MiB. */
   const command = (): { s: number; rssMiB: number } => {

@@ -16,7 +16,7 @@ export interface CommandEntry {
 /**
  * Loads a command module and takes its command: by import() (Vitest, `node --import tsx`), or, where
  * Node refuses to import TypeScript (ERR_UNKNOWN_FILE_EXTENSION: Node 20 under the executable,
- * bin/coilcue.js, whose modules are CommonJS compiled by tsx's hook), by that module's `require`,
+ * bin/coilcue.cjs, whose modules are CommonJS compiled by tsx's hook), by that module's `require`,
  * which the hook compiles.
  */
 function lazy<M>(viaRequire: () => M, viaImport: () => Promise<M>, take: (m: M) => Command): () => Promise<Command> {

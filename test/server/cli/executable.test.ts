@@ -2,12 +2,12 @@ import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 
-// The executable as a user runs it (`npx coilcue …` runs bin/coilcue.js): tsx's CommonJS hook, where
+// The executable as a user runs it (`npx coilcue …` runs bin/coilcue.cjs): tsx's CommonJS hook, where
 // command modules load through `require` (server/cli/commands/index.ts), not through Vitest's loader.
-const bin = fileURLToPath(new URL('../../../bin/coilcue.js', import.meta.url));
+const bin = fileURLToPath(new URL('../../../bin/coilcue.cjs', import.meta.url));
 const run = (...args: string[]) => spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', timeout: 60_000 });
 
-describe('bin/coilcue.js', () => {
+describe('bin/coilcue.cjs', () => {
   it('lists every command without loading them, and exits 2 with no command', () => {
     const r = run();
     expect(r.status).toBe(2);
