@@ -16,9 +16,10 @@
  * Both envelopes scale with gain: the follower of g·x is |g| times the follower of x (every
  * comparison and update is homogeneous of degree 1), and so is the RMS envelope.
  */
-import { type FrameStats, checkFrameLayout, computeFrameStats, frameCount, frameLength, frameStart } from './frame-stats.ts';
+import { type FrameStats, checkFrameLayout, computeFrameStats, frameCount, frameStart } from './frame-stats.ts';
 import {
   HISTOGRAM_RUN_MAX,
+  type HistogramLayout,
   type HistogramOptions,
   type MagnitudeHistogram,
   addCounts,
@@ -26,6 +27,13 @@ import {
   histogramLayout,
   magnitudeHistogram,
 } from './histogram.ts';
+
+/**
+ * frameStart, held in this module: an imported binding may be read through a getter on the
+ * exporting module's object at each use (CommonJS transpilation), which V8 does not always fold
+ * away inside a hot loop.
+ */
+const startOf = frameStart;
 
 /**
  * One-pole smoothing coefficient α = 1 − e^(−1/(τ·fs)) (dimensionless), from a time constant τ in s
@@ -162,20 +170,57 @@ export function sourceStatsPass(
   const min = new Float32Array(count);
   const max = new Float32Array(count);
   const peak = new Float64Array(count);
+  const acc = new Int32Array(L.nBins + 3);
+  const bits = new Int32Array(signal.buffer, signal.byteOffset, n);
   const aA = onePoleCoefficient(opts.attackS, sampleRate);
   const aR = onePoleCoefficient(opts.releaseS, sampleRate);
-  // the histogram's counting loop (histogram.ts, countMagnitudeBits) on the float32 bits
-  const bits = new Int32Array(signal.buffer, signal.byteOffset, n);
+  const out: PassOutputs = { mean, meanSquare, min, max, peak, acc };
+  primeKernel(L);
+  const peakBits = sourceStatsKernel(signal, bits, spf, count, aA, aR, L, out);
+  if (peakBits < 0) throw nonFinite(fn, -1 - peakBits, frameS);
+  const histogram = emptyHistogram(L);
+  addCounts(histogram, acc, peakBits, n);
+  return { frames: { frameS, sampleRate, count, samplesPerFrame: spf, sampleCount: n, mean, meanSquare, min, max }, peak, histogram };
+}
+
+/** Output arrays of sourceStatsKernel (one object, so the kernel's arguments keep stable types). */
+interface PassOutputs {
+  mean: Float64Array;
+  meanSquare: Float64Array;
+  min: Float32Array;
+  max: Float32Array;
+  peak: Float64Array;
+  /** Histogram counts [below, bins…, above, zeros] (histogram.ts, countMagnitudeBits). */
+  acc: Int32Array;
+}
+
+/**
+ * Kernel of sourceStatsPass: frame sums, extremes, follower maximum and histogram counts of all
+ * `count` frames (the follower starts at 0); returns the float32 bits of the highest magnitude, or
+ * −1 − k for the first frame k whose mean square is not finite (it stops there).
+ * Trusts its inputs (bits aliases signal; count = frameCount(n, spf) ≥ 1).
+ */
+function sourceStatsKernel(
+  signal: Float32Array,
+  bits: Int32Array,
+  spf: number,
+  count: number,
+  aA: number,
+  aR: number,
+  L: HistogramLayout,
+  out: PassOutputs,
+): number {
+  const { mean, meanSquare, min, max, peak, acc } = out;
   const { tab, edgeBits, shift, keyLo } = L;
+  const n = signal.length;
   const tabLen = tab.length;
   const aboveAt = L.nBins + 1;
   const zerosAt = L.nBins + 2;
-  const acc = new Int32Array(L.nBins + 3);
   let peakBits = 0;
   let y = 0;
   let start = 0;
   for (let k = 0; k < count; k++) {
-    const end = k + 1 === count ? n : frameStart(k + 1, spf);
+    const end = k + 1 === count ? n : startOf(k + 1, spf);
     let s = 0;
     let s2 = 0;
     let lo = signal[start];
@@ -197,26 +242,48 @@ export function sourceStatsPass(
       if (b > peakBits) peakBits = b;
     }
     const inv = 1 / (end - start);
+    const ms = s2 * inv;
+    if (!(ms < Infinity)) return -1 - k; // NaN or ±∞ in the frame (s2 ≥ 0 otherwise)
     mean[k] = s * inv;
-    meanSquare[k] = s2 * inv;
+    meanSquare[k] = ms;
     min[k] = lo;
     max[k] = hi;
     peak[k] = m;
     start = end;
   }
-  checkFinite(fn, meanSquare, frameS);
-  const histogram = emptyHistogram(L);
-  addCounts(histogram, acc, peakBits, n);
-  return { frames: { frameS, sampleRate, count, samplesPerFrame: spf, sampleCount: n, mean, meanSquare, min, max }, peak, histogram };
+  return peakBits;
 }
 
-/** Throws naming the first frame whose mean square is not finite (a NaN or infinite sample in it). */
-function checkFinite(fn: string, meanSquare: Float64Array, frameS: number): void {
-  for (let k = 0; k < meanSquare.length; k++) {
-    if (!Number.isFinite(meanSquare[k])) {
-      throw new RangeError(`${fn}: signal has a NaN or infinite sample in frame ${k} (near ${(k * frameS).toFixed(3)} s)`);
-    }
-  }
+/** The error for a NaN or infinite sample in frame k. */
+const nonFinite = (fn: string, k: number, frameS: number): RangeError =>
+  new RangeError(`${fn}: signal has a NaN or infinite sample in frame ${k} (near ${(k * frameS).toFixed(3)} s)`);
+
+/** Zero, below-range, in-range (both sides of a bin edge), above-range and negative magnitudes. */
+const PRIME_SAMPLES = new Float32Array([0, 1e-30, 0.5, -0.25, 1e10, -1, 0.001, -0, 1]);
+let primed = false;
+const PRIME_CALLS = 12;
+
+/**
+ * Runs sourceStatsKernel PRIME_CALLS times, once per process, over PRIME_SAMPLES in two frames (its
+ * outputs are thrown away), so that every branch of it has type feedback before the first long
+ * call: V8 compiles that call's loop while it runs (on-stack replacement), and a branch first taken
+ * after that deoptimises the compiled loop and costs a second compilation.
+ */
+function primeKernel(L: HistogramLayout): void {
+  if (primed) return;
+  primed = true;
+  const x = PRIME_SAMPLES;
+  const out: PassOutputs = {
+    mean: new Float64Array(2),
+    meanSquare: new Float64Array(2),
+    min: new Float32Array(2),
+    max: new Float32Array(2),
+    peak: new Float64Array(2),
+    acc: new Int32Array(L.nBins + 3),
+  };
+  const bits = new Int32Array(x.buffer);
+  // V8 allocates a function's feedback vector only after several calls (lazy feedback allocation).
+  for (let r = 0; r < PRIME_CALLS; r++) sourceStatsKernel(x, bits, 4.5, 2, 0.5, 0.25, L, out);
 }
 
 /** computeFrameStats and peakEnvelopeFrames as two passes (sourceStatsPass's fallback). */
@@ -259,35 +326,50 @@ export function rmsEnvelope(
   const out = opts.out ? opts.out.subarray(0, count) : new Float64Array(count);
   const w = Math.max(1, Math.round(windowS / stats.frameS));
   const lead = opts.align === 'trailing' ? w - 1 : Math.floor(w / 2);
-  const len = new Float64Array(count);
-  for (let k = 0; k < count; k++) len[k] = frameLength(stats, k);
-  const ms = stats.meanSquare;
+  rmsKernel(stats.meanSquare, stats.samplesPerFrame, stats.sampleCount, count, w, lead, out);
+  return out;
+}
+
+
+/** Samples in frame j of `count` frames over n samples: frameLength without a FrameStats. */
+const lengthOf = (j: number, spf: number, n: number, count: number): number =>
+  (j + 1 >= count ? n : startOf(j + 1, spf)) - startOf(j, spf);
+
+/**
+ * Kernel of rmsEnvelope: out[k] for k < count from the mean squares `ms` of frames of spf samples
+ * over n samples, windows of w frames starting `lead` frames before k. Trusts its inputs.
+ */
+function rmsKernel(ms: Float64Array, spf: number, n: number, count: number, w: number, lead: number, out: Float64Array): void {
   // Window of output k: frames [k − lead, k − lead + w) cut to [0, count).
   let energy = 0;
   let samples = 0;
+  let phase = 0; // k mod w
   for (let k = 0; k < count; k++) {
-    const lo = Math.max(0, k - lead);
-    const hi = Math.min(count, k - lead + w);
-    if (k % w === 0) {
+    if (phase === 0) {
+      const lo = Math.max(0, k - lead);
+      const hi = Math.min(count, k - lead + w);
       energy = 0;
       samples = 0;
       for (let j = lo; j < hi; j++) {
-        energy += len[j] * ms[j];
-        samples += len[j];
+        const len = lengthOf(j, spf, n, count);
+        energy += len * ms[j];
+        samples += len;
       }
     } else {
       const inJ = k - lead + w - 1; // frame entering at the top
       const outJ = k - lead - 1; // frame leaving at the bottom
       if (inJ < count) {
-        energy += len[inJ] * ms[inJ];
-        samples += len[inJ];
+        const len = lengthOf(inJ, spf, n, count);
+        energy += len * ms[inJ];
+        samples += len;
       }
       if (outJ >= 0) {
-        energy -= len[outJ] * ms[outJ];
-        samples -= len[outJ];
+        const len = lengthOf(outJ, spf, n, count);
+        energy -= len * ms[outJ];
+        samples -= len;
       }
     }
     out[k] = samples > 0 && energy > 0 ? Math.sqrt(energy / samples) : 0;
+    if (++phase === w) phase = 0;
   }
-  return out;
 }
