@@ -76,19 +76,6 @@ const valueOfBits = (b: number): number => ((u32[0] = b), f32[0]);
 export const binEdgeLinear = (h: Pick<MagnitudeHistogram, 'minDb' | 'binDb'>, i: number): number =>
   dbToAmp(h.minDb + i * h.binDb);
 
-/** Bucket of a magnitude v > 0: −1 below, nBins above, else the bin with e_i ≤ v < e_(i+1). */
-function bucketOf(v: number, minDb: number, binDb: number, edges: Float64Array): number {
-  const nBins = edges.length - 1;
-  if (v < edges[0]) return -1;
-  if (v >= edges[nBins]) return nBins;
-  let i = Math.floor((ampToDb(v) - minDb) / binDb);
-  if (i < 0) i = 0;
-  if (i > nBins - 1) i = nBins - 1;
-  while (i > 0 && v < edges[i]) i--;
-  while (i < nBins - 1 && v >= edges[i + 1]) i++;
-  return i;
-}
-
 let cached: HistogramLayout | undefined;
 
 function layoutFor(binDb: number, minDb: number, maxDb: number): HistogramLayout {
@@ -115,19 +102,27 @@ function layoutFor(binDb: number, minDb: number, maxDb: number): HistogramLayout
   if (tabLen > 1 << 23) throw new RangeError(`${fn}: layout too fine (${tabLen} table slices); use wider bins or a narrower range`);
   const tab = new Int32Array(tabLen);
   const edgeBits = new Int32Array(tabLen);
+  // Buckets of each slice's lowest and highest value, found by walking the slices and the edges
+  // together (both ascend): b is −1 below edges[0], i for edges[i] ≤ v < edges[i+1], nBins at or
+  // above edges[nBins].
+  let b = -1;
+  const bucketAt = (v: number): number => {
+    while (b < nBins && v >= edges[b + 1]) b++;
+    return b;
+  };
   for (let t = 0; t < tabLen; t++) {
     const k = keyLo + t;
-    const bLo = bucketOf(valueOfBits(k << shift), minDb, binDb, edges);
-    const bHi = bucketOf(valueOfBits(((k + 1) << shift) - 1), minDb, binDb, edges);
+    const bLo = bucketAt(valueOfBits(k << shift));
+    const bHi = bucketAt(valueOfBits(((k + 1) << shift) - 1));
     tab[t] = bLo + 1;
     if (bHi === bLo) {
       edgeBits[t] = 0x7fffffff;
     } else if (bHi === bLo + 1) {
       // smallest float32 ≥ the edge between the two buckets
       const e = edges[bLo + 1];
-      let b = bitsOf(e);
-      if (valueOfBits(b) < e) b++;
-      edgeBits[t] = b;
+      let eb = bitsOf(e);
+      if (valueOfBits(eb) < e) eb++;
+      edgeBits[t] = eb;
     } else {
       throw new Error(`magnitudeHistogram: internal error, slice ${k} spans buckets ${bLo}…${bHi}`);
     }
