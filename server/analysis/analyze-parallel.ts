@@ -57,14 +57,14 @@ import { epochMs } from './worker-tasks.ts';
 export { AnalysisWorker, prestartAnalysisWorker, startAnalysisWorker } from './worker-handle.ts';
 
 /**
- * Tasks in the order they are taken. Measured CPU time on a 5-minute 44.1 kHz stereo clip on the
- * project machine (ms; ±30 % from run to run, and up to 1.5× more while both cores are busy): pitch
- * 550–900, spectrum (Welch) 450–850, loudness 160–300, true peak 130–270, levels 110–230,
- * spectrogram 120–270, frames with envelopes 130–230, histogram 120–260, source levels 60–110,
- * making the mix 80–150. The channel tasks come first: the worker can run them while this thread
- * writes the mix, which the source tasks wait for; then the longest first (Graham 1969).
+ * Tasks in the order they are taken. Measured on a 5-minute 44.1 kHz stereo clip on the project
+ * machine, each task's first run in a fresh process (ms; ±30 % from run to run, and up to 1.5×
+ * more while both cores are busy): spectrum with the spectrogram 330–480, pitch 210–300, frames
+ * with envelopes and histogram 160–220, loudness 120–150, true peak 85–150, levels 40–65, source
+ * levels 30–50, writing the mix 40–120. The channel tasks come first: the worker can run them while
+ * this thread writes the mix, which the source tasks wait for; then the longest first (Graham 1969).
  */
-const ORDER_ALL: readonly AnalysisTask[] = ['loudness', 'true peak', 'pitch', 'spectrum', 'levels', 'frames', 'source levels'];
+const ORDER_ALL: readonly AnalysisTask[] = ['loudness', 'true peak', 'spectrum', 'pitch', 'levels', 'frames', 'source levels'];
 /** The same without the channel tasks, for channels the worker cannot read (not in shared memory). */
 const ORDER_SOURCE: readonly AnalysisTask[] = ORDER_ALL.filter((t) => !(CHANNEL_TASKS as readonly string[]).includes(t));
 /**

@@ -40,8 +40,9 @@ export interface OneSidedSpectrum {
 }
 
 /**
- * A real-input FFT of fixed size N (a power of two ≥ 4), with its work buffers allocated once:
- * `forward`, `forwardPair`, `powerSpectrum` and `inverse` allocate nothing when given `out` arrays.
+ * A real-input FFT of fixed size N (a power of two ≥ 4), with its work buffers allocated once
+ * (`inverse`'s on its first call): `forward`, `forwardPair`, `powerSpectrum` and `inverse` allocate
+ * nothing else when given `out` arrays.
  *
  * - `forward(x)`: X[k] = Σₙ x[n]·e^(−j2πkn/N), k = 0…N/2 (input shorter than N is zero-padded).
  * - `powerSpectrum(x)`: |X[k]|², k = 0…N/2, unnormalised (callers apply their own scaling).
@@ -62,14 +63,14 @@ export class RealFft {
   /** Number of one-sided bins, N/2 + 1. */
   readonly bins: number;
   private readonly full: FFT;
-  private readonly half: FFT;
   private readonly inBuf: Float64Array;
   private readonly outBuf: Float64Array;
-  private readonly halfIn: Float64Array;
-  private readonly halfOut: Float64Array;
   private pairIn: Float64Array | null = null;
-  private readonly cosTw: Float64Array;
-  private readonly sinTw: Float64Array;
+  /** How many real (usedA) and imaginary (usedB) parts of pairIn the last pair call wrote; the rest are 0. */
+  private usedA = 0;
+  private usedB = 0;
+  /** What only `inverse` uses, made on its first call (Welch's spectra never need it). */
+  private inv: InverseParts | null = null;
 
   constructor(size: number) {
     if (!isPowerOfTwo(size) || size < 4) {
@@ -78,18 +79,8 @@ export class RealFft {
     this.size = size;
     this.bins = size / 2 + 1;
     this.full = new FFT(size);
-    this.half = new FFT(size / 2);
     this.inBuf = new Float64Array(size);
     this.outBuf = new Float64Array(2 * size);
-    this.halfIn = new Float64Array(size);
-    this.halfOut = new Float64Array(size);
-    const m = size / 2;
-    this.cosTw = new Float64Array(m);
-    this.sinTw = new Float64Array(m);
-    for (let k = 0; k < m; k++) {
-      this.cosTw[k] = Math.cos((2 * Math.PI * k) / size);
-      this.sinTw[k] = Math.sin((2 * Math.PI * k) / size);
-    }
   }
 
   /** Runs fft.js on `input` (zero-padded to N) into outBuf (interleaved bins 0…N/2). */
@@ -162,29 +153,15 @@ export class RealFft {
    */
   inverse(re: ArrayLike<number>, im: ArrayLike<number>, out: Float64Array = new Float64Array(this.size)): Float64Array {
     const m = this.size / 2;
-    const zin = this.halfIn;
-    const cosTw = this.cosTw;
-    const sinTw = this.sinTw;
-    for (let k = 0; k < m; k++) {
-      const xr = re[k];
-      const xi = k === 0 ? 0 : im[k];
-      const yr = re[m - k];
-      const yi = k === 0 ? 0 : -im[m - k]; // conj X[M−k]; bin M's imaginary part is taken as 0
-      const ar = 0.5 * (xr + yr);
-      const ai = 0.5 * (xi + yi);
-      const dr = 0.5 * (xr - yr);
-      const di = 0.5 * (xi - yi);
-      // B = D·e^(+jθ), θ = 2πk/N
-      const c = cosTw[k];
-      const s = sinTw[k];
-      const br = dr * c - di * s;
-      const bi = dr * s + di * c;
-      // Z = A + jB
-      zin[2 * k] = ar - bi;
-      zin[2 * k + 1] = ai + br;
+    const p = (this.inv ??= inverseParts(this.size));
+    packHermitian(p.zin, re, im, m, p.cosTw, p.sinTw);
+    if (out.length === this.size) {
+      // fft.js writes (and scales) exactly `out`'s N values: no copy through zout needed
+      p.half.inverseTransform(out, p.zin);
+      return out;
     }
-    this.half.inverseTransform(this.halfOut, zin);
-    const z = this.halfOut;
+    p.half.inverseTransform(p.zout, p.zin);
+    const z = p.zout;
     for (let i = 0; i < this.size; i++) out[i] = z[i];
     return out;
   }
@@ -221,6 +198,29 @@ export class RealFft {
   }
 
   /**
+   * {@link RealFft.pairedPower} added into accumulators instead of written out: acc[k] += p[k] and,
+   * when given, also[k] += p[k], with p[k] = |A[k]|² + |B[k]|² computed exactly as pairedPower does
+   * (so the sums are those of pairedPower followed by an adding loop, bit for bit), in one pass.
+   *
+   * @param interleaved a[0], b[0], a[1], b[1], … (2N values), as for pairedPower
+   * @param acc N/2 + 1 running sums, added to
+   * @param also optionally a second set of N/2 + 1 running sums, added to as well
+   * @example f.accumulatePairedPower(z, welchSum, columnSum)
+   */
+  accumulatePairedPower(interleaved: Float64Array, acc: Float64Array, also?: Float64Array): void {
+    const n = this.size;
+    if (interleaved.length !== 2 * n) {
+      throw new RangeError(
+        `RealFft.accumulatePairedPower: interleaved must hold 2·N = ${2 * n} values, got ${interleaved.length}`,
+      );
+    }
+    const o = this.outBuf;
+    this.full.transform(o, interleaved);
+    if (also === undefined) addPairedPower(o, n, acc);
+    else addPairedPower2(o, n, acc, also);
+  }
+
+  /**
    * One-sided transforms of two real sequences with one complex FFT of size N ("FFT of two real
    * functions simultaneously", Press et al., *Numerical Recipes*, 3rd ed., §12.3): with z = a + j·b,
    * A[k] = (Z[k] + conj Z[N−k])/2 and B[k] = (Z[k] − conj Z[N−k])/(2j). Same results as two calls
@@ -246,22 +246,191 @@ export class RealFft {
     z.fill(0);
     for (let i = 0; i < a.length; i++) z[2 * i] = a[i];
     for (let i = 0; i < b.length; i++) z[2 * i + 1] = b[i];
-    const o = this.outBuf;
-    this.full.transform(o, z);
-    for (let k = 0; k < this.bins; k++) {
-      const j = k === 0 ? 0 : n - k;
-      const zr = o[2 * k];
-      const zi = o[2 * k + 1];
-      const yr = o[2 * j];
-      const yi = -o[2 * j + 1]; // conj Z[N−k]
-      aRe[k] = 0.5 * (zr + yr);
-      aIm[k] = 0.5 * (zi + yi);
-      bRe[k] = 0.5 * (zi - yi);
-      bIm[k] = -0.5 * (zr - yr);
-    }
-    aIm[0] = 0;
-    bIm[0] = 0;
-    aIm[this.bins - 1] = 0;
-    bIm[this.bins - 1] = 0;
+    this.usedA = a.length;
+    this.usedB = b.length;
+    this.full.transform(this.outBuf, z);
+    splitPair(this.outBuf, n, aRe, aIm, bRe, bIm);
   }
+
+  /**
+   * {@link RealFft.forwardPair} of two adjacent stretches of one array, a = src[from…mid−1] and
+   * b = src[mid…to−1] (each up to N values, zero-padded), with the same results bit for bit but no
+   * views to make: only the values the previous call wrote are cleared.
+   *
+   * @param src the samples (any unit)
+   * @param from, mid, to offsets into src, from ≤ mid ≤ to, mid − from ≤ N and to − mid ≤ N
+   * @param aRe, aIm, bRe, bIm N/2 + 1 values each, written
+   * @example f.forwardPairAdjacent(xs, 0, hop, 2 * hop, r0, i0, r1, i1)
+   */
+  forwardPairAdjacent(
+    src: Float32Array,
+    from: number,
+    mid: number,
+    to: number,
+    aRe: Float64Array,
+    aIm: Float64Array,
+    bRe: Float64Array,
+    bIm: Float64Array,
+  ): void {
+    const n = this.size;
+    const lenA = mid - from;
+    const lenB = to - mid;
+    if (!(lenA >= 0 && lenB >= 0 && lenA <= n && lenB <= n && from >= 0 && to <= src.length)) {
+      throw new RangeError(`RealFft.forwardPairAdjacent: ${from}…${mid}…${to} is not two stretches of ≤ ${n} values in 0…${src.length}`);
+    }
+    if (this.pairIn === null) {
+      this.pairIn = new Float64Array(2 * n);
+      this.usedA = 0;
+      this.usedB = 0;
+    }
+    const z = this.pairIn;
+    for (let i = lenA; i < this.usedA; i++) z[2 * i] = 0;
+    for (let i = lenB; i < this.usedB; i++) z[2 * i + 1] = 0;
+    this.usedA = lenA;
+    this.usedB = lenB;
+    interleavePair(z, src, from, lenA, mid, lenB);
+    this.full.transform(this.outBuf, z);
+    splitPair(this.outBuf, n, aRe, aIm, bRe, bIm);
+  }
+}
+
+/** The complex FFT of size N/2, its buffers and the twiddles e^(+j2πk/N), k < N/2, of {@link RealFft.inverse}. */
+interface InverseParts {
+  half: FFT;
+  zin: Float64Array;
+  zout: Float64Array;
+  cosTw: Float64Array;
+  sinTw: Float64Array;
+}
+
+function inverseParts(size: number): InverseParts {
+  const m = size / 2;
+  const cosTw = new Float64Array(m);
+  const sinTw = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    cosTw[k] = Math.cos((2 * Math.PI * k) / size);
+    sinTw[k] = Math.sin((2 * Math.PI * k) / size);
+  }
+  return { half: new FFT(m), zin: new Float64Array(size), zout: new Float64Array(size), cosTw, sinTw };
+}
+
+/**
+ * The packing of {@link RealFft.inverse}: zin[2k] + j·zin[2k+1] = A[k] + j·B[k], k = 0…M−1, from the
+ * one-sided bins X[0…M] (M = N/2; imaginary parts of bins 0 and M taken as 0). Bin 0 is done on its
+ * own so the loop carries no test; every value sees the same operations as in one general loop.
+ */
+function packHermitian(
+  zin: Float64Array,
+  re: ArrayLike<number>,
+  im: ArrayLike<number>,
+  m: number,
+  cosTw: Float64Array,
+  sinTw: Float64Array,
+): void {
+  {
+    const xr = re[0];
+    const xi = 0;
+    const yr = re[m];
+    const yi = 0;
+    const ar = 0.5 * (xr + yr);
+    const ai = 0.5 * (xi + yi);
+    const dr = 0.5 * (xr - yr);
+    const di = 0.5 * (xi - yi);
+    const c = cosTw[0];
+    const s = sinTw[0];
+    const br = dr * c - di * s;
+    const bi = dr * s + di * c;
+    zin[0] = ar - bi;
+    zin[1] = ai + br;
+  }
+  for (let k = 1, j = m - 1, o = 2; k < m; k++, j--, o += 2) {
+    const xr = re[k];
+    const xi = im[k];
+    const yr = re[j];
+    const yi = -im[j]; // conj X[M−k]
+    const ar = 0.5 * (xr + yr);
+    const ai = 0.5 * (xi + yi);
+    const dr = 0.5 * (xr - yr);
+    const di = 0.5 * (xi - yi);
+    // B = D·e^(+jθ), θ = 2πk/N
+    const c = cosTw[k];
+    const s = sinTw[k];
+    const br = dr * c - di * s;
+    const bi = dr * s + di * c;
+    // Z = A + jB
+    zin[o] = ar - bi;
+    zin[o + 1] = ai + br;
+  }
+}
+
+/**
+ * p[k] = (|Z[k]|² + |Z[N−k]|²)/2 added into acc, k = 0…N/2 ({@link RealFft.pairedPower}); `o` holds
+ * Z interleaved (2N values).
+ */
+function addPairedPower(o: Float64Array, n: number, acc: Float64Array): void {
+  acc[0] += o[0] * o[0] + o[1] * o[1];
+  for (let k = 1, i = 2, j = 2 * n - 2; i <= j; k++, i += 2, j -= 2) {
+    const zr = o[i];
+    const zi = o[i + 1];
+    const yr = o[j];
+    const yi = o[j + 1];
+    acc[k] += 0.5 * (zr * zr + zi * zi + yr * yr + yi * yi);
+  }
+}
+
+/** {@link addPairedPower} into two sets of sums at once. */
+function addPairedPower2(o: Float64Array, n: number, acc: Float64Array, also: Float64Array): void {
+  const p0 = o[0] * o[0] + o[1] * o[1];
+  acc[0] += p0;
+  also[0] += p0;
+  for (let k = 1, i = 2, j = 2 * n - 2; i <= j; k++, i += 2, j -= 2) {
+    const zr = o[i];
+    const zi = o[i + 1];
+    const yr = o[j];
+    const yi = o[j + 1];
+    const p = 0.5 * (zr * zr + zi * zi + yr * yr + yi * yi);
+    acc[k] += p;
+    also[k] += p;
+  }
+}
+
+/** z[2i] = src[a + i] (i < lenA), z[2i + 1] = src[b + i] (i < lenB); other values untouched. */
+function interleavePair(z: Float64Array, src: Float32Array, a: number, lenA: number, b: number, lenB: number): void {
+  for (let i = 0, o = 0; i < lenA; i++, o += 2) z[o] = src[a + i];
+  for (let i = 0, o = 1; i < lenB; i++, o += 2) z[o] = src[b + i];
+}
+
+/**
+ * Separates the transform Z of z = a + j·b (interleaved in `o`, 2N values) into the one-sided
+ * spectra of a and b ({@link RealFft.forwardPair}): A[k] = (Z[k] + conj Z[N−k])/2,
+ * B[k] = (Z[k] − conj Z[N−k])/(2j), k = 0…N/2, imaginary parts of bins 0 and N/2 set to 0.
+ */
+function splitPair(
+  o: Float64Array,
+  n: number,
+  aRe: Float64Array,
+  aIm: Float64Array,
+  bRe: Float64Array,
+  bIm: Float64Array,
+): void {
+  // bin 0: Z[N−0] is Z[0]
+  const z0r = o[0];
+  const z0i = o[1];
+  aRe[0] = 0.5 * (z0r + z0r);
+  bRe[0] = 0.5 * (z0i - -z0i);
+  aIm[0] = 0;
+  bIm[0] = 0;
+  const last = n / 2;
+  for (let k = 1, i = 2, j = 2 * n - 2; k <= last; k++, i += 2, j -= 2) {
+    const zr = o[i];
+    const zi = o[i + 1];
+    const yr = o[j];
+    const yi = -o[j + 1]; // conj Z[N−k]
+    aRe[k] = 0.5 * (zr + yr);
+    aIm[k] = 0.5 * (zi + yi);
+    bRe[k] = 0.5 * (zi - yi);
+    bIm[k] = -0.5 * (zr - yr);
+  }
+  aIm[last] = 0;
+  bIm[last] = 0;
 }

@@ -711,7 +711,7 @@ class BlockCorrelator {
   private readonly powAt: number;
   private readonly sAt: number;
   private readonly qAt: number;
-  /** Views of the ring's slots, made once (forwardPair writes a block's spectrum into them). */
+  /** Views of the ring's slots, made once (forwardPairAdjacent writes a block's spectrum into them). */
   private readonly slotRe: Float64Array[] = [];
   private readonly slotIm: Float64Array[] = [];
   /** The next block {@link BlockCorrelator.advanceTo} takes in. */
@@ -772,9 +772,11 @@ class BlockCorrelator {
       const end = Math.min(x.length, start1 + hop);
       const at = x.ensure(start0, end) - start0; // x[i] is xs[at + i]
       const xs = x.samples();
-      this.fft.forwardPair(
-        xs.subarray(at + start0, at + start1),
-        xs.subarray(at + start1, at + end),
+      this.fft.forwardPairAdjacent(
+        xs,
+        at + start0,
+        at + start1,
+        at + end,
         slotRe[s0],
         slotIm[s0],
         slotRe[s1],

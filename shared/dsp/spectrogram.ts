@@ -21,7 +21,7 @@
  */
 import { RealFft, isPowerOfTwo } from './fft.ts';
 import { hannWindow } from './window.ts';
-import { type WelchSpectrum, welchPsd } from './welch.ts';
+import { type WelchSpectrum, welchPsd, welchPsdGrouped } from './welch.ts';
 
 /** Options of {@link displaySpectrogram}; every field has a default. */
 export interface SpectrogramOptions {
@@ -325,17 +325,15 @@ export function welchSpectrogram(
     acc.fill(0);
     frames = 0;
   };
-  const welch = welchPsd(signal, sampleRate, {
-    size,
-    onSegments: (first, count, power) => {
-      const c = columnOf(first, count);
-      if (c !== column) {
-        finish();
-        column = c;
-      }
-      for (let k = 0; k < bins; k++) acc[k] += power[k];
-      frames += count;
-    },
+  // welchPsdGrouped adds each group's periodogram into the array returned here (its column's sums)
+  const welch = welchPsdGrouped(signal, sampleRate, size, (first, count) => {
+    const c = columnOf(first, count);
+    if (c !== column) {
+      finish();
+      column = c;
+    }
+    frames += count;
+    return acc;
   });
   finish();
   const { edgesHz, frequenciesHz } = layout;

@@ -49,8 +49,9 @@ export interface WelchSpectrum extends PowerSpectrum {
 /**
  * One-sided PSD by Welch's method: periodic Hann segments of `size` samples with 50 % overlap
  * (hop size/2), periodograms averaged, density scaling as in the module comment (Welch 1967).
- * Segments go through the FFT in pairs (RealFft.pairedPower: two real segments as one complex
- * sequence, their summed periodogram read off its transform); the sums are added in segment order.
+ * Segments go through the FFT in pairs (two real segments as one complex sequence, their summed
+ * periodogram read off its transform: RealFft.accumulatePairedPower, or RealFft.pairedPower when
+ * `onSegments` is given); the sums are added in segment order, with the same result either way.
  * `opts.onSegments` sees each pair's (or lone segment's) summed periodogram as it is made, so a
  * caller can group segments in time (welchSpectrogram in spectrogram.ts) without another FFT.
  *
@@ -77,21 +78,73 @@ export function welchPsd(
   sampleRate: number,
   opts: WelchOptions = {},
 ): WelchSpectrum {
-  const size = opts.size ?? 4096;
+  return welchCore('welchPsd', signal, sampleRate, opts.size ?? 4096, opts.onSegments, undefined);
+}
+
+/**
+ * {@link welchPsd} (default options) that also adds each pair's (or lone segment's) summed
+ * periodogram Σ|X[k]|², k = 0…N/2, into the array `groupSum(first, count)` returns for segments
+ * first…first+count−1 (called once per group, in order, before its periodogram is added): how
+ * welchSpectrogram (spectrogram.ts) builds its columns from Welch's own FFTs without a copy. The
+ * spectrum and the sums are bit for bit those of welchPsd with an onSegments hook adding `power`.
+ *
+ * @param signal samples, full scale ±1
+ * @param sampleRate in Hz (> 0)
+ * @param size FFT size, a power of two ≥ 4
+ * @param groupSum gives the N/2 + 1 running sums to add a group's periodogram to
+ * @returns as welchPsd
+ * @throws RangeError as welchPsd
+ * @example welchPsdGrouped(mix, 44100, 4096, (first) => columnSums[columnOf(first)])
+ */
+export function welchPsdGrouped(
+  signal: Float32Array,
+  sampleRate: number,
+  size: number,
+  groupSum: (first: number, count: 1 | 2) => Float64Array,
+): WelchSpectrum {
+  return welchCore('welchPsd', signal, sampleRate, size, undefined, groupSum);
+}
+
+/**
+ * z[2i] = x[a + i]·w[i], z[2i + 1] = x[b + i]·w[i], i = 0…m − 1: two segments windowed and
+ * interleaved as one complex sequence (caller keeps a + m and b + m within x, m within w). Nothing
+ * is computed before the loop: an operation there has no type feedback on the first (cold) call,
+ * which runs before V8 allocates feedback, and the optimised code would deoptimise on it.
+ */
+function windowPair(z: Float64Array, x: Float32Array, a: number, b: number, w: Float64Array, m: number): void {
+  for (let i = 0, o = 0; i < m; i++, o += 2) {
+    const wi = w[i];
+    z[o] = x[a + i] * wi;
+    z[o + 1] = x[b + i] * wi;
+  }
+}
+
+/** acc[k] += p[k] for every k. */
+function addInto(acc: Float64Array, p: Float64Array): void {
+  for (let k = 0; k < acc.length; k++) acc[k] += p[k];
+}
+
+function welchCore(
+  fn: string,
+  signal: Float32Array,
+  sampleRate: number,
+  size: number,
+  onSegments: WelchOptions['onSegments'],
+  groupSum: ((first: number, count: 1 | 2) => Float64Array) | undefined,
+): WelchSpectrum {
   if (!isPowerOfTwo(size) || size < 4) {
-    throw new RangeError(`welchPsd: opts.size must be a power of two ≥ 4, got ${size}`);
+    throw new RangeError(`${fn}: opts.size must be a power of two ≥ 4, got ${size}`);
   }
   if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
-    throw new RangeError(`welchPsd: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+    throw new RangeError(`${fn}: sampleRate must be a positive number of Hz, got ${sampleRate}`);
   }
   const n = signal.length;
-  if (n === 0) throw new RangeError('welchPsd: signal is empty');
+  if (n === 0) throw new RangeError(`${fn}: signal is empty`);
 
   const fft = new RealFft(size);
   const bins = fft.bins;
   const acc = new Float64Array(bins);
   const power = new Float64Array(bins);
-  const onSegments = opts.onSegments;
 
   const segLen = Math.min(n, size);
   const w = segLen >= 4 ? hannWindow(segLen) : new Float64Array(segLen).fill(1);
@@ -102,27 +155,34 @@ export function welchPsd(
   const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
   // Segments go through the FFT two at a time: segment s windowed into the real parts, s + 1 (which
   // starts hop samples later) into the imaginary parts. An odd last one, or a lone short signal
-  // (zero-padded to size), goes alone.
+  // (zero-padded to size), goes alone. Unless a hook must see each pair's periodogram on its own,
+  // the periodogram is added into the sums (and the group's) in the transform's unpacking pass.
   const z = new Float64Array(2 * size);
   let s = 0;
   for (; s + 1 < segments; s += 2) {
-    const start = s * hop;
-    for (let i = 0; i < size; i++) {
-      z[2 * i] = signal[start + i] * w[i];
-      z[2 * i + 1] = signal[start + hop + i] * w[i];
+    windowPair(z, signal, s * hop, s * hop + hop, w, size);
+    if (onSegments !== undefined) {
+      fft.pairedPower(z, power);
+      addInto(acc, power);
+      onSegments(s, 2, power);
+    } else {
+      fft.accumulatePairedPower(z, acc, groupSum?.(s, 2));
     }
-    fft.pairedPower(z, power);
-    for (let k = 0; k < bins; k++) acc[k] += power[k];
-    onSegments?.(s, 2, power);
   }
   if (s < segments) {
     const seg = new Float64Array(size);
     for (let i = 0; i < segLen; i++) seg[i] = signal[s * hop + i] * w[i];
     fft.powerSpectrum(seg, power);
-    for (let k = 0; k < bins; k++) acc[k] += power[k];
+    addInto(acc, power);
     onSegments?.(s, 1, power);
+    if (groupSum !== undefined) addInto(groupSum(s, 1), power);
   }
+  return densityOf(acc, segments, sampleRate, sumW2, size);
+}
 
+/** The Welch spectrum from the summed periodograms of `segments` segments (module comment's scaling). */
+function densityOf(acc: Float64Array, segments: number, sampleRate: number, sumW2: number, size: number): WelchSpectrum {
+  const bins = acc.length;
   const binHz = sampleRate / size;
   const psd = new Float64Array(bins);
   const frequencyHz = new Float64Array(bins);

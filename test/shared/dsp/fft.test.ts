@@ -204,3 +204,61 @@ describe('RealFft.inverse', () => {
     }
   });
 });
+
+describe('RealFft fused variants give their plain counterparts’ numbers bit for bit', () => {
+  // These methods are documented as the same operations in the same order as the plain ones, so
+  // exact equality (Object.is) is the contract under test, not a tolerance: one reordered addition
+  // would show.
+  const same = (a: ArrayLike<number>, b: ArrayLike<number>) => {
+    expect(a.length).toBe(b.length);
+    for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) expect([i, a[i]]).toEqual([i, b[i]]);
+  };
+
+  it('accumulatePairedPower = pairedPower added into one or both sums, N = 4…4096', () => {
+    for (const n of [4, 8, 16, 32, 64, 512, 4096]) {
+      const f = new RealFft(n);
+      const z = Float64Array.from(noise(2 * n, 7 + n));
+      const p = f.pairedPower(z);
+      const start = Float64Array.from(noise(n / 2 + 1, 13 + n));
+      const want = start.map((v, k) => v + p[k]);
+      const acc = start.slice();
+      const also = start.slice();
+      f.accumulatePairedPower(z, acc, also);
+      same(acc, want);
+      same(also, want);
+      const alone = start.slice();
+      f.accumulatePairedPower(z, alone);
+      same(alone, want);
+    }
+    expect(() => new RealFft(8).accumulatePairedPower(new Float64Array(8), new Float64Array(5))).toThrow(RangeError);
+  });
+
+  it('forwardPairAdjacent = forwardPair of the two stretches, whatever the previous call left', () => {
+    const n = 64;
+    const f = new RealFft(n);
+    const g = new RealFft(n);
+    const src = Float32Array.from(noise(4 * n, 21));
+    const out = () => [0, 1, 2, 3].map(() => new Float64Array(n / 2 + 1));
+    // lengths that shrink and grow, so stale values from a longer previous call must be cleared
+    for (const [from, la, lb] of [[0, 64, 64], [5, 10, 40], [9, 40, 3], [100, 0, 17], [2, 33, 0], [7, 64, 64]]) {
+      const p = out();
+      const q = out();
+      f.forwardPair(src.subarray(from, from + la), src.subarray(from + la, from + la + lb), p[0], p[1], p[2], p[3]);
+      g.forwardPairAdjacent(src, from, from + la, from + la + lb, q[0], q[1], q[2], q[3]);
+      for (let i = 0; i < 4; i++) same(q[i], p[i]);
+    }
+    const [r0, i0, r1, i1] = out();
+    expect(() => g.forwardPairAdjacent(src, 0, n + 1, n + 2, r0, i0, r1, i1)).toThrow(RangeError);
+  });
+
+  it('inverse into exactly N values = inverse into a longer array (first N values), which it leaves beyond N', () => {
+    const n = 32;
+    const f = new RealFft(n);
+    const re = Float64Array.from(noise(n / 2 + 1, 31));
+    const im = Float64Array.from(noise(n / 2 + 1, 32));
+    const exact = f.inverse(re, im, new Float64Array(n));
+    const long = f.inverse(re, im, new Float64Array(n + 3).fill(7));
+    same(exact, long.subarray(0, n));
+    same(long.subarray(n), [7, 7, 7]);
+  });
+});
