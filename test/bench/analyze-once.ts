@@ -13,6 +13,7 @@
 import { analyzeClipParallel, startAnalysisWorker } from '../../server/analysis/analyze-parallel.ts';
 import { decodeAudioFile } from '../../server/audio/decode.ts';
 import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
+import { peakRssKiB } from './peak-rss.cjs';
 
 /** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.cjs runs the product). */
 export async function main(): Promise<void> {
@@ -55,7 +56,7 @@ export async function main(): Promise<void> {
       stagesMs: stages,
       timeline,
       durationS: clip.channels[0].length / clip.sampleRate,
-      maxRssMiB: process.resourceUsage().maxRSS / 1024,
+      maxRssMiB: peakRssKiB() / 1024,
     }) + '\n',
   );
 }

@@ -5,10 +5,12 @@
  * The measured figure is the command a user runs, end to end: `node bin/coilcue.cjs analyze <file>
  * --json`, from spawning the process to its exit (Node's start-up, loading the modules, decoding,
  * the analysis on both cores, the JSON written), with its peak RSS reported by an exit hook
- * preloaded with --require (rss-on-exit.cjs). Where ffmpeg is on PATH, its EBU R 128 loudness pass
+ * preloaded with --require (rss-on-exit.cjs, reading /proc/self/status: see peak-rss.cjs for why not
+ * getrusage). Where ffmpeg is on PATH, its EBU R 128 loudness pass
  * (`ffmpeg -af ebur128=peak=true -f null -`) is timed the same way on the same file, runs
- * interleaved with ours, and our median is printed as a ratio of its median. Targets (from the
- * project's issue on the analysis engine): ratio ≤ 0.8, peak RSS < 256 MiB.
+ * interleaved with ours, and the ratio is printed twice: of the two medians, and the median of each
+ * of our runs over the ffmpeg run right after it. Targets (from the project's issue on the analysis
+ * engine): ratio ≤ 0.8 (both must meet it), peak RSS < 256 MiB.
  *
  * For diagnosis it then prints, from one in-process run (analyze-once.ts), the decoding and
  * analysis times and where and when each task ran, and one run on a single thread (analyzeClip).
@@ -61,7 +63,7 @@ try {
   command(); // a first run compiles the TypeScript into tsx's cache, as any earlier use of the tool has
   const runs: { s: number; rssMiB: number }[] = [];
   const ffTimes: number[] = [];
-  for (let i = 0; i < 5; i++) {
+  for (let i = 0; i < 7; i++) {
     runs.push(command());
     if (hasFfmpeg) ffTimes.push(ffmpegS());
   }
@@ -73,7 +75,11 @@ try {
   if (hasFfmpeg) {
     const ff = median(ffTimes);
     const ratio = totalS / ff;
-    console.log(`ffmpeg ebur128=peak=true, median of ${ffTimes.length}: ${ff.toFixed(3)} s (runs ${ffTimes.map((t) => t.toFixed(2)).join(', ')}); ratio ours/ffmpeg ${ratio.toFixed(2)} (target ≤ 0.8): ${ratio <= 0.8 ? 'met' : 'NOT MET'}`);
+    // Each of our runs against the ffmpeg run right after it: the pair saw the same state of the
+    // machine, so the median of the pairs' ratios shrugs off a slow spell better than either median.
+    const paired = median(runs.map((r, i) => r.s / ffTimes[i]));
+    console.log(`ffmpeg ebur128=peak=true, median of ${ffTimes.length}: ${ff.toFixed(3)} s (runs ${ffTimes.map((t) => t.toFixed(2)).join(', ')})`);
+    console.log(`  ratio ours/ffmpeg: ${ratio.toFixed(2)} of the medians, ${paired.toFixed(2)} median of the paired runs (target ≤ 0.8): ${Math.max(ratio, paired) <= 0.8 ? 'met' : 'NOT MET'}`);
   } else {
     console.log('ffmpeg not on PATH: ratio not measured (apt-get install -y ffmpeg to compare)');
   }
