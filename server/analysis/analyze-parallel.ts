@@ -27,8 +27,9 @@
  * analysis is redone by analyzeClip, so the caller gets the very error analyzeClip throws first.
  * The worker is terminated when the analysis ends, however it ends.
  *
- * Starting a worker costs about 0.3 s (a V8 isolate, tsx, compiling the DSP modules): start it with
- * startAnalysisWorker() before decoding and pass it in, so that time overlaps the decoding.
+ * Starting a worker costs 0.15–0.3 s (a V8 isolate, tsx, loading the DSP modules): start it with
+ * startAnalysisWorker() (or prestartAnalysisWorker(), worker-handle.ts) before decoding and pass it
+ * in, so that time overlaps the decoding.
  */
 import {
   type AnalyzeOptions,
