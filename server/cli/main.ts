@@ -19,7 +19,7 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
     io.out(helpText());
     return name ? 0 : EXIT_BAD_INPUT;
   }
-  const entry: CommandEntry | undefined = commands[name];
+  const entry: CommandEntry | undefined = Object.hasOwn(commands, name) ? commands[name] : undefined;
   if (!entry) {
     io.err(`coilcue: unknown command "${name}"; known: ${Object.keys(commands).join(', ')}\n`);
     return EXIT_BAD_INPUT;

@@ -26,10 +26,12 @@ describe('bin/coilcue.cjs', () => {
     expect(Object.keys(report).length).toBeGreaterThan(0);
   });
 
-  it('an unknown command exits 2 with one line naming the known ones', () => {
-    const r = run('sing');
-    expect(r.status).toBe(2);
-    expect(r.stderr.trim().split('\n')).toHaveLength(1);
-    expect(r.stderr).toMatch(/unknown command "sing"; known: analyze, coil/);
+  it('an unknown command exits 2 with one line naming the known ones, even a name objects inherit', () => {
+    for (const name of ['sing', 'toString', 'constructor']) {
+      const r = run(name);
+      expect(r.status).toBe(2);
+      expect(r.stderr.trim().split('\n')).toHaveLength(1);
+      expect(r.stderr).toMatch(new RegExp(`unknown command "${name}"; known: analyze, coil`));
+    }
   });
 });
