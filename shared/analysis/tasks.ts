@@ -37,9 +37,9 @@ export interface TaskOutputs {
   loudness: LoudnessReport;
   /** Level figures of the source alone. */
   'source levels': ChannelLevels;
-  /** Frame statistics, the two envelopes built on them, and the magnitude histogram (one pass, sourceStatsPass). */
+  /** Frame statistics, the two envelopes built on them and the magnitude histogram (one pass: sourceStatsPass). */
   frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array; histogram: MagnitudeHistogram };
-  /** Welch PSD, the features read from it, and the display spectrogram (from the same FFTs when the clip is long enough). */
+  /** Welch PSD, the features read from it, and the display spectrogram (welchSpectrogram). */
   spectrum: Omit<SpectrumFigures, 'pitch'>;
   pitch: PitchTrack;
 }
@@ -75,11 +75,12 @@ export function runChannelTask<T extends ChannelTask>(task: T, clip: AudioClip):
 
 /**
  * Runs one source task on the modulation source: its levels (measureLevels), frame statistics with
- * the peak and RMS envelopes and the magnitude histogram (one pass), Welch spectrum with its features (Welch 1967),
- * display spectrogram, or YIN pitch track (de Cheveigné & Kawahara 2002). The choices analyzeClip
- * makes are here: a spectrogram read off the Welch segments when the clip fills every column with
- * them (≥ ~93 s at 44.1 kHz), else of two FFT frames of its own per column (welchSpectrogram), and a
- * pitch hop of 20 ms (melodic notes last ≥ ~50 ms) up to min(1 kHz, fs/4).
+ * the peak and RMS envelopes and the magnitude histogram (one pass), Welch spectrum with its
+ * features (Welch 1967) and display spectrogram, or YIN pitch track (de Cheveigné & Kawahara
+ * 2002). The choices analyzeClip makes are here: a spectrogram read off the Welch segments when the
+ * clip fills every column with them (≥ ~93 s at 44.1 kHz), else of two FFT frames of its own per
+ * column (welchSpectrogram), and a pitch hop of 20 ms (melodic notes last ≥ ~50 ms) up to
+ * min(1 kHz, fs/4).
  *
  * @param source modulation source samples, full scale ±1
  * @param sampleRate Hz
