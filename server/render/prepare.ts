@@ -6,7 +6,7 @@
  */
 import { resolve } from 'node:path';
 import type { ClipAnalysis } from '../../shared/analysis/analyze-clip.ts';
-import { type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
+import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { CoilReport } from '../../shared/physics/coil/analyze.ts';
 import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
@@ -50,8 +50,7 @@ export async function prepareJob(
   const coilReport = await loadCoil(files.coil, io.cwd);
   const driver = await loadDriver(files.driver, io.cwd);
   const coil: CoilAtResonance = { resonanceHz: coilReport.resonanceHz, qualityFactor: coilReport.qualityFactor };
-  const { clip, analysis } = await loadAndAnalyze(files.clip, io, { channel });
-  const source = modulationSource(clip, channel);
+  const { clip, analysis, source } = await loadAndAnalyze(files.clip, io, { channel });
   const plan = toPlanClip(files.clip, analysis, source, driver);
   return { clipPath: files.clip, clip, analysis, channel, source, coilReport, coil, driver, settings: planSettings(driver), plan };
 }

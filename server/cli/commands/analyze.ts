@@ -1,10 +1,10 @@
 import { resolve } from 'node:path';
 import type { AnalyzeOptions, ClipAnalysis } from '../../../shared/analysis/analyze-clip.ts';
 import { type AnalysisSummary, summarizeAnalysis } from '../../../shared/analysis/summary.ts';
-import type { ModulationChannel } from '../../../shared/audio/clip.ts';
+import { type ModulationChannel, modulationSource } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
 import { analyzeClipParallel, startAnalysisWorker } from '../../analysis/analyze-parallel.ts';
-import { sharedSourceWriter } from '../../analysis/shared-source.ts';
+import { matchesModulationSource, sharedSourceWriter } from '../../analysis/shared-source.ts';
 import { decodeAudioFile } from '../../audio/decode.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { CliIo, Command } from '../io.ts';
@@ -19,14 +19,16 @@ const CHANNELS = ['mix', 'left', 'right'] as const;
  * worker starts before decoding, so its start-up overlaps it, and the modulation source is written
  * into shared memory block by block as the file is decoded, so the worker starts on it at once.
  * The same analysis as analyzeClip. Decode progress is the first half of the bar. Shared by other
- * commands, which keep the clip's samples.
+ * commands, which keep the clip's samples; `source` is the modulation source the analysis read
+ * (modulationSource(clip, channel), bit for bit), so they need not mix the channels again.
  */
 export async function loadAndAnalyze(
   file: string,
   io: CliIo,
   opts: Omit<AnalyzeOptions, 'onProgress'> = {},
-): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ClipAnalysis }> {
-  return decodeAndAnalyze(file, io, opts, false);
+): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ClipAnalysis; source: Float32Array }> {
+  const { clip, analysis, shared } = await decodeAndAnalyze(file, io, opts, false);
+  return { clip, analysis, source: shared ?? modulationSource(clip, opts.channel ?? 'mix') };
 }
 
 /**
@@ -45,7 +47,7 @@ async function decodeAndAnalyze(
   io: CliIo,
   opts: Omit<AnalyzeOptions, 'onProgress'>,
   giveUpSamples: boolean,
-): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ClipAnalysis }> {
+): Promise<{ clip: Awaited<ReturnType<typeof decodeAudioFile>>; analysis: ClipAnalysis; shared: Float32Array | null }> {
   const bar = progressBar(io, 'analysing');
   const worker = startAnalysisWorker();
   try {
@@ -58,14 +60,15 @@ async function decodeAndAnalyze(
     if (opts.channel === 'right' && clip.channels.length < 2) {
       throw new InputError('bad-arguments', `--channel right asked of a mono file (${file}); use --channel mix or left`);
     }
+    const shared = source?.source() ?? null;
     const analysis = await analyzeClipParallel(clip, {
       ...opts,
       worker,
-      sharedSource: source?.source() ?? undefined,
+      sharedSource: shared ?? undefined,
       donateChannels: giveUpSamples,
       onProgress: (f, stage) => bar.update(0.5 + 0.5 * f, stage),
     });
-    return { clip, analysis };
+    return { clip, analysis, shared: shared !== null && matchesModulationSource(clip, opts.channel ?? 'mix', shared) ? shared : null };
   } finally {
     void worker.terminate();
     bar.done();

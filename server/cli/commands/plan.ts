@@ -1,5 +1,5 @@
 import { dirname, resolve } from 'node:path';
-import { modulationSource, type ModulationChannel } from '../../../shared/audio/clip.ts';
+import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
 import { analyzeCoil, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
@@ -44,8 +44,8 @@ export async function loadDriver(path: string, cwd: string): Promise<DriverProfi
 
 /** Analyses a clip file and turns it into the planner's input. */
 async function loadPlanClip(file: string, io: CliIo, driver: DriverProfile, channel: ModulationChannel, pulseSource: PulseSource) {
-  const { clip, analysis } = await loadAndAnalyze(file, io, { channel });
-  return { planClip: toPlanClip(file, analysis, modulationSource(clip, channel), driver, pulseSource), analysis };
+  const { analysis, source } = await loadAndAnalyze(file, io, { channel });
+  return { planClip: toPlanClip(file, analysis, source, driver, pulseSource), analysis };
 }
 
 const f1 = (x: number) => x.toFixed(1);
