@@ -242,14 +242,10 @@ export class RealFft {
     if (a.length > n || b.length > n) {
       throw new RangeError(`RealFft.forwardPair: inputs of ${a.length} and ${b.length} values, more than size ${n}`);
     }
-    const z = (this.pairIn ??= new Float64Array(2 * n));
-    z.fill(0);
+    const z = this.pairBuffer();
     for (let i = 0; i < a.length; i++) z[2 * i] = a[i];
     for (let i = 0; i < b.length; i++) z[2 * i + 1] = b[i];
-    this.usedA = a.length;
-    this.usedB = b.length;
-    this.full.transform(this.outBuf, z);
-    splitPair(this.outBuf, n, aRe, aIm, bRe, bIm);
+    this.transformPair(a.length, b.length, aRe, aIm, bRe, bIm);
   }
 
   /**
@@ -278,19 +274,28 @@ export class RealFft {
     if (!(lenA >= 0 && lenB >= 0 && lenA <= n && lenB <= n && from >= 0 && to <= src.length)) {
       throw new RangeError(`RealFft.forwardPairAdjacent: ${from}…${mid}…${to} is not two stretches of ≤ ${n} values in 0…${src.length}`);
     }
-    if (this.pairIn === null) {
-      this.pairIn = new Float64Array(2 * n);
-      this.usedA = 0;
-      this.usedB = 0;
-    }
-    const z = this.pairIn;
+    interleavePair(this.pairBuffer(), src, from, lenA, mid, lenB);
+    this.transformPair(lenA, lenB, aRe, aIm, bRe, bIm);
+  }
+
+  /** The interleaved buffer of the pair methods (made on first use); beyond what the last one wrote, zeros. */
+  private pairBuffer(): Float64Array {
+    return (this.pairIn ??= new Float64Array(2 * this.size));
+  }
+
+  /**
+   * The rest of a pair call once a (lenA values) and b (lenB values) are written into pairBuffer():
+   * clears what a longer previous call left beyond them (zero padding), transforms, and separates
+   * the two one-sided spectra.
+   */
+  private transformPair(lenA: number, lenB: number, aRe: Float64Array, aIm: Float64Array, bRe: Float64Array, bIm: Float64Array): void {
+    const z = this.pairBuffer();
     for (let i = lenA; i < this.usedA; i++) z[2 * i] = 0;
     for (let i = lenB; i < this.usedB; i++) z[2 * i + 1] = 0;
     this.usedA = lenA;
     this.usedB = lenB;
-    interleavePair(z, src, from, lenA, mid, lenB);
     this.full.transform(this.outBuf, z);
-    splitPair(this.outBuf, n, aRe, aIm, bRe, bIm);
+    splitPair(this.outBuf, this.size, aRe, aIm, bRe, bIm);
   }
 }
 
