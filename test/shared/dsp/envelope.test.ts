@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { createPeakFollower, sourceStatsPass, onePoleCoefficient, peakEnvelopeFrames } from '../../../shared/dsp/envelope.ts';
+import { createPeakFollower, onePoleCoefficient, peakEnvelopeFrames, sourceStatsPass } from '../../../shared/dsp/envelope.ts';
 import { computeFrameStats, frameCount, frameStart } from '../../../shared/dsp/frame-stats.ts';
 import { magnitudeHistogram } from '../../../shared/dsp/histogram.ts';
+import { uniformNoise } from './uniform-noise.ts';
 
 const FS = 48000;
 
@@ -135,26 +136,15 @@ describe('peakEnvelopeFrames', () => {
 });
 
 describe('sourceStatsPass: frame statistics, peak envelope and magnitude histogram in one pass', () => {
-  /** Deterministic uniform noise in [−amp, amp) (a 32-bit LCG, Numerical Recipes constants). */
-  function noise(n: number, seed: number, amp: number): Float32Array {
-    let st = seed >>> 0;
-    const out = new Float32Array(n);
-    for (let i = 0; i < n; i++) {
-      st = (Math.imul(st, 1664525) + 1013904223) >>> 0;
-      out[i] = amp * (st / 2 ** 31 - 1);
-    }
-    return out;
-  }
-
   it('equals computeFrameStats, peakEnvelopeFrames and magnitudeHistogram exactly, on any frame layout and length', () => {
-    const bursts = noise(44100, 5, 0.8).map((v, i) => (Math.floor(i / 3000) % 2 === 0 ? v : v * 0.01));
+    const bursts = uniformNoise(44100, 0.8, 5).map((v, i) => (Math.floor(i / 3000) % 2 === 0 ? v : v * 0.01));
     // zeros, magnitudes below −120 dBFS, above +6 dBFS and ±0 exercise every branch of the count
     const edges = Float32Array.of(0, -0, 1e-7, -3e-8, 2.5, -4, 1, -1, 0.5, 1e-6);
     const cases: [Float32Array, number, number][] = [
       [bursts, 44100, 0.001],
       [edges, 8000, 0.001],
       [bursts.subarray(0, 1003), 44100, 0.0025],
-      [noise(7, 9, 1), 48000, 0.001],
+      [uniformNoise(7, 1, 9), 48000, 0.001],
       [Float32Array.of(0.5), 8000, 0.001],
       [new Float32Array(480), 48000, 0.001],
     ];

@@ -2,21 +2,12 @@ import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { bandMeans, displaySpectrogram, welchSpectrogram } from '../../../shared/dsp/spectrogram.ts';
 import { welchPsd } from '../../../shared/dsp/welch.ts';
+import { uniformNoise } from './uniform-noise.ts';
 
 // fft-js (devDependency): the independent FFT the reference periodograms below are computed with.
 const require = createRequire(import.meta.url);
 const oracle = require('fft-js') as { fft(x: number[]): [number, number][] };
 
-/** Deterministic uniform noise in [−amp, amp) (a 32-bit LCG, Numerical Recipes constants). */
-function noise(n: number, seed: number, amp = 1): Float32Array {
-  let st = seed >>> 0;
-  const out = new Float32Array(n);
-  for (let i = 0; i < n; i++) {
-    st = (Math.imul(st, 1664525) + 1013904223) >>> 0;
-    out[i] = amp * (st / 2 ** 31 - 1);
-  }
-  return out;
-}
 
 function sine(n: number, fs: number, hz: number, amp: number, phase = 0): Float32Array {
   const out = new Float32Array(n);
@@ -185,7 +176,7 @@ describe('welchSpectrogram: the spectrogram from Welch\'s own segments', () => {
     const fs = 8000;
     const size = 64;
     const columns = 10;
-    const x = noise(size * columns * 2 + 37, 99, 0.3);
+    const x = uniformNoise(size * columns * 2 + 37, 0.3, 99);
     const { welch, spectrogram: sp } = welchSpectrogram(x, fs, { welchSize: size, columns, rows: 12, minHz: 100 });
     expect(sp.columns).toBe(columns);
     expect(sp.size).toBe(size);
@@ -220,7 +211,7 @@ describe('welchSpectrogram: the spectrogram from Welch\'s own segments', () => {
   it('gives exactly welchPsd\'s spectrum, and follows a 12 dB step in level in time', () => {
     const fs = 8000;
     const n = 50 * 4096 * 2;
-    const x = noise(n, 7, 0.1);
+    const x = uniformNoise(n, 0.1, 7);
     for (let i = n / 2; i < n; i++) x[i] *= 4; // +12.04 dB from the middle on
     const { welch, spectrogram: sp } = welchSpectrogram(x, fs, { columns: 50 });
     const ref = welchPsd(x, fs);

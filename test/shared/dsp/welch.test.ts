@@ -2,17 +2,7 @@ import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { welchPsd } from '../../../shared/dsp/welch.ts';
 import { hannWindow } from '../../../shared/dsp/window.ts';
-
-/** Deterministic uniform noise in [−amp, amp) (32-bit LCG, Numerical Recipes constants). */
-function uniformNoise(n: number, amp: number, seed: number): Float32Array {
-  let s = seed >>> 0;
-  const out = new Float32Array(n);
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    out[i] = amp * (s / 2 ** 31 - 1);
-  }
-  return out;
-}
+import { uniformNoise } from './uniform-noise.ts';
 
 function tones(n: number, fs: number, parts: { hz: number; amp: number; phase?: number }[]): Float32Array {
   const out = new Float32Array(n);
