@@ -1,7 +1,8 @@
 /**
  * Deterministic uniform noise in [−amp, amp): a 32-bit linear congruential generator with the
- * Numerical Recipes constants (Press et al., *Numerical Recipes*, 3rd ed., §7.1), for tests that want
- * a broadband signal that is the same on every run.
+ * Numerical Recipes constants 1664525 and 1013904223 (Press et al., *Numerical Recipes in C*, 2nd ed.,
+ * §7.1, the "quick and dirty" generator [recalled]), for tests that want a broadband signal that is
+ * the same on every run.
  *
  * @example uniformNoise(4096, 0.5, 7) // 4096 samples in [−0.5, 0.5)
  */
