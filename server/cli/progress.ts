@@ -22,3 +22,13 @@ export function progressBar(io: CliIo, title: string): { update(fraction: number
     },
   };
 }
+
+/** Runs `work` with a progress bar on stderr (a terminal only), cleared when the work ends, however it ends. */
+export async function withProgress<T>(io: CliIo, title: string, work: (onProgress: (fraction: number, stage: string) => void) => Promise<T>): Promise<T> {
+  const bar = progressBar(io, title);
+  try {
+    return await work((f, stage) => bar.update(f, stage));
+  } finally {
+    bar.done();
+  }
+}

@@ -5,7 +5,7 @@ import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
 import { msToS } from '../../../shared/units.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
-import { readJsonFile } from '../read-json.ts';
+import { readJsonFile } from '../../services/read-json.ts';
 import { formatEng } from '../format.ts';
 
 export { formatEng };

@@ -1,52 +1,27 @@
 import { dirname, resolve } from 'node:path';
-import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
-import { analyzeCoil, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
+import type { CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
-import { type PulseSource, toPlanClip } from '../../../shared/plan/plan-clip.ts';
-import { type PlanReport, planClipReport } from '../../../shared/plan/report.ts';
+import type { PlanReport } from '../../../shared/plan/report.ts';
 import { type SetResult, planSet } from '../../../shared/plan/set.ts';
 import { traceCsv } from '../../../shared/plan/trace.ts';
-import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
-import { type DriverProfile, parseDriverProfile } from '../../../shared/schemas/driver.ts';
+import type { DriverProfile } from '../../../shared/schemas/driver.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
+import { jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
+import { loadCoil, loadDriver } from '../../services/profiles.ts';
+import { readJsonFile } from '../../services/read-json.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
-import type { CliIo, Command } from '../io.ts';
-import { readJsonFile } from '../read-json.ts';
-import { loadAndAnalyze } from './analyze.ts';
+import type { Command } from '../io.ts';
 import { formatEng } from '../format.ts';
+import { withProgress } from '../progress.ts';
+
+export { jsonReplacer };
 
 const USAGE =
   'coilcue plan --clip <audio> --coil <coil.json> --driver <driver.json> [--gain-db G] [--json] [--trace out.csv] ' +
   '[--channel mix|left|right] [--margin-k K] [--allowed-share S] [--ambient-c C] [--pulse-source zero-crossing|pitch-locked]\n' +
   '       coilcue plan --set <set.json> [--json] [--common-gain] [--ambient-c C] [--margin-k K] [--allowed-share S]';
-
-/**
- * Reads and models a coil. With the driver, its figures feed the coil's voltage bound and arc
- * reach (and so the keep-out distance): supply voltage and full-rail current for the input power,
- * and for the pulse scheme the longest on-time for the energy bound (a continuous rail has no
- * per-pulse energy, so only the arc-reach rule applies there).
- */
-export async function loadCoil(path: string, cwd: string, driver?: DriverProfile): Promise<CoilReport> {
-  const profile = parseCoilProfile(await readJsonFile(path, cwd, 'coil profile', 'fix the file or start from a demo: coilcue coil --demo desk-lantern --json'));
-  if (!driver) return analyzeCoil(profile);
-  return analyzeCoil(profile, {
-    supplyVoltageV: driver.supplyVoltageV,
-    fullRailCurrentA: driver.fullRailCurrentA,
-    ...(driver.scheme === 'pulse' && driver.pulse ? { pulseOnTimeS: driver.pulse.maxOnTimeS } : {}),
-  });
-}
-
-export async function loadDriver(path: string, cwd: string): Promise<DriverProfile> {
-  return parseDriverProfile(await readJsonFile(path, cwd, 'driver profile', 'fix the file; the README shows a complete driver profile'));
-}
-
-/** Analyses a clip file and turns it into the planner's input. */
-async function loadPlanClip(file: string, io: CliIo, driver: DriverProfile, channel: ModulationChannel, pulseSource: PulseSource) {
-  const { analysis, source } = await loadAndAnalyze(file, io, { channel });
-  return { planClip: toPlanClip(file, analysis, source, driver, pulseSource), analysis };
-}
 
 const f1 = (x: number) => x.toFixed(1);
 const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
@@ -56,15 +31,6 @@ function limitText(l: { limit: string; role: string | null; value: number; allow
   const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
   return `${l.limit}${who}: ${v}`;
 }
-
-/** The coil's voltage bound, arc reach and keep-out distance, for the cautions. */
-export const keepOutFigures = (coil: CoilReport) => ({
-  topVoltageBoundV: coil.voltage.topVoltageBoundV,
-  breakdownGapM: coil.voltage.breakdownGapM,
-  arcReachM: coil.voltage.arcReachM,
-  keepOutM: coil.keepOutM,
-  basis: coil.voltage.basis,
-});
 
 /** The readable answer for one clip. */
 export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
@@ -176,7 +142,7 @@ export const planCommand: Command = {
       const settings = settingsFrom(values, driver);
       const items = [];
       for (const it of set.items) {
-        const { planClip } = await loadPlanClip(resolve(base, it.clip), io, driver, channel, pulseSource);
+        const { planClip } = await withProgress(io, 'analysing', (onProgress) => loadPlanClip(resolve(base, it.clip), driver, channel, pulseSource, onProgress));
         planClip.name = it.clip;
         items.push({ clip: planClip, gapAfterS: it.gapAfterS, gainDb: it.gainDb });
       }
@@ -192,19 +158,15 @@ export const planCommand: Command = {
     const driver = await loadDriver(values.driver, io.cwd);
     const coil = await loadCoil(values.coil, io.cwd, driver);
     const settings = settingsFrom(values, driver);
-    const { planClip, analysis } = await loadPlanClip(values.clip, io, driver, channel, pulseSource);
-    const { report, evaluation } = planClipReport(planClip, coil, driver, settings, {
-      gainDb,
-      spectrum: analysis.spectrum.welch,
-      traces: values.trace !== undefined,
-    });
+    const { planClip, analysis } = await withProgress(io, 'analysing', (onProgress) =>
+      loadPlanClip(resolve(io.cwd, values.clip as string), driver, channel, pulseSource, onProgress),
+    );
+    planClip.name = values.clip;
+    const { document, evaluation } = planClipDocument(planClip, analysis, coil, driver, settings, { gainDb, traces: values.trace !== undefined });
     if (values.trace !== undefined) {
       await writeFileAtomic(resolve(io.cwd, values.trace), new TextEncoder().encode(traceCsv(evaluation.sim, planClip.frames.frameS)));
     }
-    io.out(values.json ? JSON.stringify({ ...report, keepOut: keepOutFigures(coil) }, jsonReplacer, 2) + '\n' : formatPlan(report, coil, driver));
+    io.out(values.json ? JSON.stringify(document, jsonReplacer, 2) + '\n' : formatPlan(document, coil, driver));
     return 0;
   },
 };
-
-/** JSON has no ±Infinity or NaN: write them as null. */
-export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v);

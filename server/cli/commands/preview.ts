@@ -1,49 +1,22 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
-import { type ArcSound, type LevelTriple, arcSound } from '../../../shared/preview/arc-sound.ts';
-import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../../shared/preview/modulation.ts';
-import { ampToDb, finiteOrNull } from '../../../shared/units.ts';
-import { type WavSampleFormat, encodeWav, writeWavAtomic } from '../../audio/wav.ts';
-import { quantisationMargin } from '../../render/render-clip.ts';
-import { RENDER_CAUTION, chooseGain, prepareJob, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
+import { DEFAULT_MAX_COLUMNS } from '../../../shared/preview/modulation.ts';
+import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
+import { prepareJob } from '../../services/plan.ts';
+import { type PreviewSummary, previewJob } from '../../services/render.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
+import { refuseOverwriteOfInput, requireFiles } from '../file-args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 import { alignRows } from '../format.ts';
+import { withProgress } from '../progress.ts';
+
+export type { PreviewSummary };
 
 const USAGE =
   'coilcue preview --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--channel mix|left|right] [--format s16|s24|f32] [--columns N] [--json]';
 const CHANNELS = ['mix', 'left', 'right'] as const;
 const FORMATS = ['s16', 's24', 'f32'] as const;
-
-const levelsDb = (l: LevelTriple) => ({
-  samplePeakDbfs: finiteOrNull(ampToDb(l.samplePeak)),
-  truePeakDbtp: finiteOrNull(ampToDb(l.truePeak)),
-  rmsDbfs: finiteOrNull(ampToDb(l.rms)),
-});
-
-/** Everything `preview --json` prints: the modulation preview's grid and ranges (not every column) and the arc sound's levels. */
-export interface PreviewSummary {
-  clip: string;
-  out: string;
-  format: WavSampleFormat;
-  sampleRate: number;
-  durationS: number;
-  channel: ModulationChannel;
-  scheme: string;
-  gainDb: number;
-  gainFrom: 'advised' | 'given';
-  modulation: Pick<ModulationPreview, 'columns' | 'framesPerColumn' | 'columnS' | 'range'> & { supplyVoltageV: number; fullPowerW: number };
-  arcSound: {
-    cornerHz: number | null;
-    pulseCount: number | null;
-    limitedBy: ArcSound['limitedBy'];
-    scale: number;
-    source: ReturnType<typeof levelsDb>;
-    output: ReturnType<typeof levelsDb>;
-  };
-  caution: string;
-}
 
 const num = (x: number | null, d: number): string => (x === null ? '—' : x.toFixed(d));
 const dB = (x: number | null): string => (x === null ? '-inf' : x.toFixed(2));
@@ -103,43 +76,9 @@ export const previewCommand: Command = {
     const columns = numberFlag(values.columns, 'columns', { min: 1, max: 100000 }) ?? DEFAULT_MAX_COLUMNS;
     if (!Number.isInteger(columns)) throw new InputError('bad-arguments', `--columns must be a whole number, got ${columns}`);
 
-    const job = await prepareJob(io, files, channel);
-    const choice = chooseGain(job.plan, job, gainDb);
-    const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: columns });
-    const arc = arcSound(job.source, job.clip.sampleRate, job.driver, job.coil, choice.gainDb, {
-      pulseEvents: job.plan.pulseEvents,
-      peakMargin: quantisationMargin(format),
-    });
-    const bytes = encodeWav({ sampleRate: arc.sampleRate, channels: [arc.samples] }, { format, seed: 1 });
+    const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
+    const { bytes, summary: s } = previewJob(job, { names: files, gainDb, format, columns });
     await writeWavAtomic(resolve(io.cwd, files.out), bytes);
-    const s: PreviewSummary = {
-      clip: files.clip,
-      out: files.out,
-      format,
-      sampleRate: arc.sampleRate,
-      durationS: arc.samples.length / arc.sampleRate,
-      channel,
-      scheme: job.driver.scheme,
-      gainDb: choice.gainDb,
-      gainFrom: choice.from,
-      modulation: {
-        columns: mod.columns,
-        framesPerColumn: mod.framesPerColumn,
-        columnS: mod.columnS,
-        range: mod.range,
-        supplyVoltageV: job.driver.supplyVoltageV,
-        fullPowerW: job.driver.supplyVoltageV * job.driver.fullRailCurrentA,
-      },
-      arcSound: {
-        cornerHz: arc.cornerHz,
-        pulseCount: arc.pulseCount,
-        limitedBy: arc.limitedBy,
-        scale: arc.scale,
-        source: levelsDb(arc.source),
-        output: levelsDb(arc.output),
-      },
-      caution: RENDER_CAUTION,
-    };
     io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatPreview(s));
     return EXIT_OK;
   },

@@ -1,18 +1,17 @@
 import { resolve } from 'node:path';
-import { analyzeClip } from '../../../shared/analysis/analyze-clip.ts';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
-import type { LimitCheck } from '../../../shared/plan/evaluate.ts';
-import { toPlanClip } from '../../../shared/plan/plan-clip.ts';
-import { finiteOrNull } from '../../../shared/units.ts';
-import { DEFAULT_MAX_BYTES, DEFAULT_MAX_DURATION_S, decodeAudioBytes } from '../../audio/decode.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
-import { type ClosedLoopReport, closedLoopCheck, formatLimitValue, limitLabel } from '../../render/closed-loop.ts';
-import { type GainChoice, RENDER_CAUTION, chooseGain, prepareJob, refuseOverwriteOfInput, requireFiles } from '../../render/prepare.ts';
-import { type PreEmphasis, type RenderedModulation, encodeRender, renderGraph, renderModulation } from '../../render/render-clip.ts';
+import { formatLimitValue, limitLabel } from '../../render/closed-loop.ts';
+import { prepareJob } from '../../services/plan.ts';
+import { type RenderSummary, renderJob } from '../../services/render.ts';
 import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
+import { refuseOverwriteOfInput, requireFiles } from '../file-args.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 import { alignRows } from '../format.ts';
+import { withProgress } from '../progress.ts';
+
+export type { RenderSummary };
 
 // Registered together with `preview` from one import line in ./index.ts.
 
@@ -20,76 +19,6 @@ const USAGE =
   'coilcue render --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--format s16|s24|f32] [--channel mix|left|right] [--pre-emphasis-db G] [--pre-emphasis-hz F] [--ceiling-dbfs C] [--json]';
 const CHANNELS = ['mix', 'left', 'right'] as const;
 const FORMATS = ['s16', 's24', 'f32'] as const;
-
-/** Everything `render --json` prints. ±Infinity levels are null. */
-export interface RenderSummary {
-  clip: string;
-  out: string;
-  format: WavSampleFormat;
-  sampleRate: number;
-  durationS: number;
-  channel: ModulationChannel;
-  scheme: string;
-  gainDb: number;
-  gainFrom: 'advised' | 'given';
-  advice: { advisedGainDb: number | null; binding: Pick<LimitCheck, 'limit' | 'role' | 'value' | 'allowed' | 'unit'> | null } | null;
-  preEmphasis: PreEmphasis | null;
-  limiter: RenderedModulation['limiter'];
-  levels: {
-    beforeLimiter: { samplePeakDbfs: number | null; truePeakDbtp: number | null };
-    render: { samplePeakDbfs: number | null; truePeakDbtp: number | null };
-  };
-  closedLoop: {
-    ok: boolean;
-    promiseKept: boolean;
-    gainDbApplied: 0;
-    explanation: string;
-    limits: ClosedLoopReport['limits'];
-    failures: string[];
-  };
-  caution: string;
-}
-
-function bindingOf(b: LimitCheck | null) {
-  return b ? { limit: b.limit, role: b.role, value: b.value, allowed: b.allowed, unit: b.unit } : null;
-}
-
-function summary(
-  files: { clip: string; out: string },
-  format: WavSampleFormat,
-  r: RenderedModulation,
-  scheme: string,
-  choice: GainChoice,
-  loop: ClosedLoopReport,
-): RenderSummary {
-  return {
-    clip: files.clip,
-    out: files.out,
-    format,
-    sampleRate: r.sampleRate,
-    durationS: r.samples.length / r.sampleRate,
-    channel: r.channel,
-    scheme,
-    gainDb: choice.gainDb,
-    gainFrom: choice.from,
-    advice: choice.advice ? { advisedGainDb: choice.advice.advisedGainDb, binding: bindingOf(choice.advice.binding) } : null,
-    preEmphasis: r.preEmphasis,
-    limiter: r.limiter,
-    levels: {
-      beforeLimiter: { samplePeakDbfs: finiteOrNull(r.beforeLimiter.samplePeakDbfs), truePeakDbtp: finiteOrNull(r.beforeLimiter.truePeakDbtp) },
-      render: { samplePeakDbfs: finiteOrNull(r.samplePeakDbfs), truePeakDbtp: finiteOrNull(r.truePeakDbtp) },
-    },
-    closedLoop: {
-      ok: loop.ok,
-      promiseKept: loop.promiseKept,
-      gainDbApplied: 0,
-      explanation: loop.explanation,
-      limits: loop.limits,
-      failures: loop.failures,
-    },
-    caution: RENDER_CAUTION,
-  };
-}
 
 const dB = (x: number | null, digits = 2): string => (x === null || !Number.isFinite(x) ? '-inf' : `${x >= 0 ? '+' : ''}${x.toFixed(digits)}`);
 
@@ -168,28 +97,9 @@ export const renderCommand: Command = {
     if (shelfHz !== undefined && shelfDb === undefined) throw new InputError('bad-arguments', '--pre-emphasis-hz needs --pre-emphasis-db (the shelf gain)');
     const ceilingDbfs = numberFlag(values['ceiling-dbfs'], 'ceiling-dbfs', { min: -40, max: 0 }) ?? 0;
 
-    const job = await prepareJob(io, files, channel);
-    const fs = job.clip.sampleRate;
-    let preEmphasis: PreEmphasis | null = null;
-    let plan = job.plan;
-    if (shelfDb !== undefined && shelfDb !== 0) {
-      const cornerHz = shelfHz ?? job.coilReport.modulationCornerHz;
-      if (!(cornerHz < fs / 2)) {
-        throw new InputError('bad-arguments', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower --pre-emphasis-hz`);
-      }
-      preEmphasis = { cornerHz, shelfGainDb: shelfDb };
-      // The advice must be for the signal that reaches the coil: plan the emphasised source.
-      const emphasised = await renderGraph(job.source, fs, 0, preEmphasis);
-      plan = toPlanClip(files.clip, analyzeClip({ sampleRate: fs, channels: [emphasised] }), emphasised, job.driver);
-    }
-    const choice = chooseGain(plan, job, gainDb);
-    const rendered = await renderModulation(job.clip, { channel, gainDb: choice.gainDb, preEmphasis, ceilingDbfs, format });
-    const bytes = encodeRender(rendered, format);
-    // Closed loop on what the file holds: decoded from the very bytes written (our own file: no size or length limit).
-    const decoded = await decodeAudioBytes(bytes, { maxBytes: Math.max(DEFAULT_MAX_BYTES, bytes.length), maxDurationS: Math.max(DEFAULT_MAX_DURATION_S, 2 * rendered.samples.length / fs) });
-    const loop = closedLoopCheck({ sampleRate: decoded.sampleRate, channels: decoded.channels }, files.out, job.coil, job.driver, job.settings, choice.promised);
+    const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
+    const { bytes, summary: s } = await renderJob(job, { names: files, gainDb, format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs });
     await writeWavAtomic(resolve(io.cwd, files.out), bytes);
-    const s = summary(files, format, rendered, job.driver.scheme, choice, loop);
     io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatRender(s));
     return EXIT_OK;
   },

@@ -85,7 +85,7 @@ describe('coilcue render', () => {
     expect((JSON.parse(r.out) as RenderSummary).channel).toBe('right');
     const m = await run('render', '--clip', 'mono.wav', '--coil', 'coil.json', '--driver', 'buck.json', '--out', 'm.wav', '--channel', 'right');
     expect(m.code).toBe(2);
-    expect(m.err).toMatch(/--channel right asked of a mono file/);
+    expect(m.err).toMatch(/channel "right" asked of a mono file/);
   });
 });
 

@@ -3,7 +3,7 @@ import { resolve } from 'node:path';
 import { InputError } from '../../shared/errors.ts';
 
 /**
- * Reads and parses a JSON file a person named on the command line. `what` names it in messages
+ * Reads and parses a JSON file a person named (a path on the command line, or a set file's entry). `what` names it in messages
  * ("coil profile", "set file"); `hint` says where to start when it is not valid JSON.
  * Errors: InputError 'file-not-found' (cannot read, with the reason) or 'bad-json'.
  */

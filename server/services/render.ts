@@ -1,0 +1,211 @@
+/**
+ * The coil-ready render and the arc-sound preview of a prepared job: what `coilcue render` and
+ * `coilcue preview` do and what the server's render jobs do, built once. Each returns the WAV bytes
+ * and the JSON document the command prints with --json; writing the file is the caller's.
+ */
+import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
+import type { ModulationChannel } from '../../shared/audio/clip.ts';
+import { InputError } from '../../shared/errors.ts';
+import type { LimitCheck } from '../../shared/plan/evaluate.ts';
+import { toPlanClip } from '../../shared/plan/plan-clip.ts';
+import { type ArcSound, type LevelTriple, arcSound } from '../../shared/preview/arc-sound.ts';
+import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
+import { ampToDb, finiteOrNull } from '../../shared/units.ts';
+import { DEFAULT_MAX_BYTES, DEFAULT_MAX_DURATION_S, decodeAudioBytes } from '../audio/decode.ts';
+import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
+import { type ClosedLoopReport, closedLoopCheck } from '../render/closed-loop.ts';
+import { type PreEmphasis, type RenderedModulation, encodeRender, quantisationMargin, renderGraph, renderModulation } from '../render/render-clip.ts';
+import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
+
+/** The safety line both commands print once, and the API returns beside every render. */
+export const RENDER_CAUTION =
+  'Caution: resonant coils make high voltage and RF that can burn, injure or kill; follow local codes and licensed practice. Hearing: keep preview volume moderate.';
+
+/** Everything `render --json` prints. ±Infinity levels are null. */
+export interface RenderSummary {
+  clip: string;
+  out: string;
+  format: WavSampleFormat;
+  sampleRate: number;
+  durationS: number;
+  channel: ModulationChannel;
+  scheme: string;
+  gainDb: number;
+  gainFrom: 'advised' | 'given';
+  advice: { advisedGainDb: number | null; binding: Pick<LimitCheck, 'limit' | 'role' | 'value' | 'allowed' | 'unit'> | null } | null;
+  preEmphasis: PreEmphasis | null;
+  limiter: RenderedModulation['limiter'];
+  levels: {
+    beforeLimiter: { samplePeakDbfs: number | null; truePeakDbtp: number | null };
+    render: { samplePeakDbfs: number | null; truePeakDbtp: number | null };
+  };
+  closedLoop: {
+    ok: boolean;
+    promiseKept: boolean;
+    gainDbApplied: 0;
+    explanation: string;
+    limits: ClosedLoopReport['limits'];
+    failures: string[];
+  };
+  caution: string;
+}
+
+function bindingOf(b: LimitCheck | null) {
+  return b ? { limit: b.limit, role: b.role, value: b.value, allowed: b.allowed, unit: b.unit } : null;
+}
+
+function renderSummary(
+  files: { clip: string; out: string },
+  format: WavSampleFormat,
+  r: RenderedModulation,
+  scheme: string,
+  choice: GainChoice,
+  loop: ClosedLoopReport,
+): RenderSummary {
+  return {
+    clip: files.clip,
+    out: files.out,
+    format,
+    sampleRate: r.sampleRate,
+    durationS: r.samples.length / r.sampleRate,
+    channel: r.channel,
+    scheme,
+    gainDb: choice.gainDb,
+    gainFrom: choice.from,
+    advice: choice.advice ? { advisedGainDb: choice.advice.advisedGainDb, binding: bindingOf(choice.advice.binding) } : null,
+    preEmphasis: r.preEmphasis,
+    limiter: r.limiter,
+    levels: {
+      beforeLimiter: { samplePeakDbfs: finiteOrNull(r.beforeLimiter.samplePeakDbfs), truePeakDbtp: finiteOrNull(r.beforeLimiter.truePeakDbtp) },
+      render: { samplePeakDbfs: finiteOrNull(r.samplePeakDbfs), truePeakDbtp: finiteOrNull(r.truePeakDbtp) },
+    },
+    closedLoop: {
+      ok: loop.ok,
+      promiseKept: loop.promiseKept,
+      gainDbApplied: 0,
+      explanation: loop.explanation,
+      limits: loop.limits,
+      failures: loop.failures,
+    },
+    caution: RENDER_CAUTION,
+  };
+}
+
+/** What a render is asked for. A shelf gain of 0 (or none) means no pre-emphasis. */
+export interface RenderOptions {
+  /** Names shown in the document: the clip as the person named it, and the output. */
+  names: { clip: string; out: string };
+  gainDb?: number;
+  format: WavSampleFormat;
+  preEmphasisDb?: number;
+  /** The shelf's corner; default the coil's modulation corner. */
+  preEmphasisHz?: number;
+  ceilingDbfs: number;
+}
+
+/**
+ * The coil-ready clip: gain (given or advised for the signal that reaches the coil), optional
+ * pre-emphasis, the look-ahead limiter, encoded; then decoded from the very bytes and planned again
+ * (the closed loop). InputError when the pre-emphasis corner is not below half the sample rate or
+ * no gain is safe.
+ */
+export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ bytes: Uint8Array; summary: RenderSummary }> {
+  const fs = job.clip.sampleRate;
+  let preEmphasis: PreEmphasis | null = null;
+  let plan = job.plan;
+  if (o.preEmphasisDb !== undefined && o.preEmphasisDb !== 0) {
+    const cornerHz = o.preEmphasisHz ?? job.coilReport.modulationCornerHz;
+    if (!(cornerHz < fs / 2)) {
+      throw new InputError('bad-pre-emphasis', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower corner frequency`, 'preEmphasisHz');
+    }
+    preEmphasis = { cornerHz, shelfGainDb: o.preEmphasisDb };
+    // The advice must be for the signal that reaches the coil: plan the emphasised source.
+    const emphasised = await renderGraph(job.source, fs, 0, preEmphasis);
+    plan = toPlanClip(job.clipPath, analyzeClip({ sampleRate: fs, channels: [emphasised] }), emphasised, job.driver);
+  }
+  const choice = chooseGain(plan, job, o.gainDb);
+  const rendered = await renderModulation(job.clip, { channel: job.channel, gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format });
+  const bytes = encodeRender(rendered, o.format);
+  // Closed loop on what the file holds: decoded from the very bytes written (our own file: no size or length limit).
+  const decoded = await decodeAudioBytes(bytes, { maxBytes: Math.max(DEFAULT_MAX_BYTES, bytes.length), maxDurationS: Math.max(DEFAULT_MAX_DURATION_S, (2 * rendered.samples.length) / fs) });
+  const loop = closedLoopCheck({ sampleRate: decoded.sampleRate, channels: decoded.channels }, o.names.out, job.coil, job.driver, job.settings, choice.promised);
+  return { bytes, summary: renderSummary(o.names, o.format, rendered, job.driver.scheme, choice, loop) };
+}
+
+const levelsDb = (l: LevelTriple) => ({
+  samplePeakDbfs: finiteOrNull(ampToDb(l.samplePeak)),
+  truePeakDbtp: finiteOrNull(ampToDb(l.truePeak)),
+  rmsDbfs: finiteOrNull(ampToDb(l.rms)),
+});
+
+/** Everything `preview --json` prints: the modulation preview's grid and ranges (not every column) and the arc sound's levels. */
+export interface PreviewSummary {
+  clip: string;
+  out: string;
+  format: WavSampleFormat;
+  sampleRate: number;
+  durationS: number;
+  channel: ModulationChannel;
+  scheme: string;
+  gainDb: number;
+  gainFrom: 'advised' | 'given';
+  modulation: Pick<ModulationPreview, 'columns' | 'framesPerColumn' | 'columnS' | 'range'> & { supplyVoltageV: number; fullPowerW: number };
+  arcSound: {
+    cornerHz: number | null;
+    pulseCount: number | null;
+    limitedBy: ArcSound['limitedBy'];
+    scale: number;
+    source: ReturnType<typeof levelsDb>;
+    output: ReturnType<typeof levelsDb>;
+  };
+  caution: string;
+}
+
+/** What a preview is asked for. */
+export interface PreviewOptions {
+  names: { clip: string; out: string };
+  gainDb?: number;
+  format: WavSampleFormat;
+  /** Columns of the modulation preview's display grid; default DEFAULT_MAX_COLUMNS. */
+  columns?: number;
+}
+
+/** The arc-sound WAV and the modulation preview of a prepared job at the given (or advised) gain. */
+export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8Array; summary: PreviewSummary; modulation: ModulationPreview } {
+  const choice = chooseGain(job.plan, job, o.gainDb);
+  const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: o.columns ?? DEFAULT_MAX_COLUMNS });
+  const arc = arcSound(job.source, job.clip.sampleRate, job.driver, job.coil, choice.gainDb, {
+    pulseEvents: job.plan.pulseEvents,
+    peakMargin: quantisationMargin(o.format),
+  });
+  const bytes = encodeWav({ sampleRate: arc.sampleRate, channels: [arc.samples] }, { format: o.format, seed: 1 });
+  const summary: PreviewSummary = {
+    clip: o.names.clip,
+    out: o.names.out,
+    format: o.format,
+    sampleRate: arc.sampleRate,
+    durationS: arc.samples.length / arc.sampleRate,
+    channel: job.channel,
+    scheme: job.driver.scheme,
+    gainDb: choice.gainDb,
+    gainFrom: choice.from,
+    modulation: {
+      columns: mod.columns,
+      framesPerColumn: mod.framesPerColumn,
+      columnS: mod.columnS,
+      range: mod.range,
+      supplyVoltageV: job.driver.supplyVoltageV,
+      fullPowerW: job.driver.supplyVoltageV * job.driver.fullRailCurrentA,
+    },
+    arcSound: {
+      cornerHz: arc.cornerHz,
+      pulseCount: arc.pulseCount,
+      limitedBy: arc.limitedBy,
+      scale: arc.scale,
+      source: levelsDb(arc.source),
+      output: levelsDb(arc.output),
+    },
+    caution: RENDER_CAUTION,
+  };
+  return { bytes, summary, modulation: mod };
+}
