@@ -5,16 +5,18 @@
  * pre-emphasis advice. JSON-safe apart from the typed arrays of `traces` (kept out of the JSON).
  */
 import type { WelchSpectrum } from '../dsp/welch.ts';
-import type { CoilAtResonance, DeviceTraces, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
+import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
+import { frameLossAtW } from '../physics/driver/device-run.ts';
+import { bridgeLossParts, totalLossW } from '../physics/driver/losses.ts';
+import { frameLossModel } from '../physics/driver/simulate-rail.ts';
 import { ThermalNetwork } from '../physics/thermal/network.ts';
-import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
+import type { DeviceRole, DriverDevice, DriverProfile } from '../schemas/driver.ts';
 import { powerToDb } from '../units.ts';
 import { type Advice, adviseGain } from './advise.ts';
 import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './demand.ts';
 import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
 import { pulsesAtGain } from './pulse-train.ts';
-import { simulateSteady } from './steady.ts';
 
 export const GAIN_CONVENTION =
   'gain 0 dB: a full-scale sample (±1.0) swings a rail scheme’s rail over its whole range (0 to the supply, around a bias at half the supply) and takes a pulse scheme’s on-time to its maximum';
@@ -34,7 +36,11 @@ export interface DeviceFigures {
 
 export interface BudgetCurve {
   role: DeviceRole;
-  /** The device's loss in full operation (full rail; for a pass device its worst, at half rail), W. */
+  /**
+   * The device's loss in full operation, W: its worst at a constant operating point with the
+   * on-resistance at the limit temperature (bridge: full rail; pass device: half rail; buck
+   * modulator: just below 100 % duty; pulse scheme: during a pulse). See fullOperationLossW.
+   */
   fullLossW: number;
   /** Tj max − margin − ambient, K. */
   allowedRiseK: number;
@@ -42,8 +48,8 @@ export interface BudgetCurve {
   /** Allowed fraction of full operation for a burst of each length (single-pulse Zth method). */
   budget: number[];
   /**
-   * The clip's highest mean normalised power (or duty) over any window of each length, at the evaluated
-   * gain; for a pass device its loss as a fraction of fullLossW.
+   * The clip's highest mean demand over any window of each length, at the evaluated gain: the
+   * device's own per-frame loss as a fraction of fullLossW (pulse scheme: the on-time fraction).
    */
   demand: number[];
   /** Where the worst window of each length starts, s. */
@@ -91,21 +97,43 @@ export interface PlanReport {
   searchEvaluations: number;
 }
 
-/** Device losses in full operation, W, per device in profile order (module comment of BudgetCurve). */
-export function fullOperationLossW(driver: DriverProfile, coil: CoilAtResonance, ambientC: number): number[] {
-  const tS = 1;
-  const frameS = 0.01;
-  const run = (railV: number) => simulateSteady(driver, coil, { durationS: tS, frameS, railV, pulseOn: true, ambientC });
-  const sims = driver.scheme === 'rail-linear' ? [run(driver.supplyVoltageV), run(driver.supplyVoltageV / 2)] : [run(driver.supplyVoltageV)];
-  return driver.devices.map((d) =>
-    Math.max(
-      ...sims.map((s) => {
-        const t = s.devices.find((x) => x.role === d.role)?.traces as DeviceTraces | undefined;
-        return t ? Math.max(...t.lossW) : 0;
-      }),
-    ),
-  );
+/**
+ * Each device's loss in full operation, W, per device in profile order (0 for a device the scheme
+ * does not use): the largest loss of its own loss model at any constant operating point, with the
+ * on-resistance held at the limit temperature Tj max − marginK (the hottest the budget lets it
+ * run, so the figure is on the safe side):
+ * - rail schemes: the frame loss model (frameLossModel) at constant rails v on a grid over
+ *   0…V_s that includes the buck modulator's last taperV volts: the bridge's worst is at V_s, the
+ *   linear pass device's at V_s/2 (g·V_s²/4), the buck modulator's just below 100 % duty, where it
+ *   still switches (at 100 % it stays on and only conducts);
+ * - pulse scheme: the bridge during a pulse (full rail).
+ */
+export function fullOperationLossW(driver: DriverProfile, coil: CoilAtResonance, settings: Pick<PlanSettings, 'marginK'>): number[] {
+  const vs = driver.supplyVoltageV;
+  return driver.devices.map((d) => {
+    const alpha = d.rdsOnTempCoeffPerK ?? 0;
+    const hotC = d.tjMaxC - settings.marginK;
+    if (driver.scheme === 'pulse') {
+      if (d.role !== 'bridge') return 0;
+      const ia = driver.fullRailCurrentA;
+      const parts = bridgeLossParts(d, driver.topology, coil.resonanceHz, { meanCurrentA: ia, meanSquareCurrentA2: ia * ia, meanPowerW: vs * ia, meanSquareV2: vs * vs });
+      return totalLossW(parts, alpha, hotC);
+    }
+    const aux = driver.scheme === 'rail-linear' ? 'pass' : 'modulator';
+    if (d.role !== 'bridge' && d.role !== aux) return 0;
+    const model = frameLossModel(driver, d.role, coil.resonanceHz);
+    let worst = 0;
+    const at = (v: number) => {
+      worst = Math.max(worst, frameLossAtW(model, v, v * v, alpha, hotC));
+    };
+    for (let k = 0; k <= FULL_GRID; k++) at((vs * k) / FULL_GRID);
+    const w = Math.min(vs, model.taperV ?? 0);
+    for (let k = 0; k <= FULL_GRID; k++) at(vs - (w * k) / FULL_GRID);
+    return worst;
+  });
 }
+/** Grid points per sweep of fullOperationLossW (the losses are smooth: the worst is found to < 0.1 %). */
+const FULL_GRID = 64;
 
 /**
  * Pre-emphasis advice from the clip's spectrum and the coil's modulation corner fc: the coil's
@@ -137,11 +165,14 @@ export function preEmphasisAdvice(spec: WelchSpectrum, cornerHz: number): PreEmp
 }
 
 /**
- * Normalised demand per frame at a gain: E[v²]/V² (rail schemes) or on-time fraction (pulse). For a
- * linear pass device, whose full-operation loss is its worst, g·V²/4 at half rail, the demand is its
- * own loss over that: g(V·E[v] − E[v²])/(g·V²/4) = 4(E[v]/V − E[v²]/V²).
+ * A role's demand per frame at a gain: its own per-frame loss divided by its full-operation loss
+ * (both from the same loss model, on-resistance at the same limit temperature; see
+ * fullOperationLossW). Rail schemes: the frame loss model (frameLossModel) at the frame's E[v] and
+ * E[v²] — for a MOSFET bridge E[v²]/V_s², for the linear pass device 4(E[v]/V_s − E[v²]/V_s²),
+ * for the buck modulator its E[v³] conduction, E[v] switching and constant C_oss parts. Pulse
+ * scheme: the on-time fraction (the loss during a pulse is the full-operation loss).
  */
-function demandSeries(clip: PlanClip, driver: DriverProfile, gainDb: number, role: DeviceRole = 'bridge'): Float64Array {
+function demandSeries(clip: PlanClip, coil: CoilAtResonance, driver: DriverProfile, gainDb: number, device: DriverDevice, fullLossW: number, marginK: number): Float64Array {
   const g = dbToAmp(gainDb);
   const n = clip.frames.count;
   const out = new Float64Array(n);
@@ -161,11 +192,12 @@ function demandSeries(clip: PlanClip, driver: DriverProfile, gainDb: number, rol
     }
     return out;
   }
-  const v2 = driver.supplyVoltageV ** 2;
+  if (driver.scheme === 'pulse' || !(fullLossW > 0)) return out;
   const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, createScratch(clip));
-  const vs = driver.supplyVoltageV;
-  if (role === 'pass') for (let k = 0; k < n; k++) out[k] = Math.max(0, 4 * (rail.meanV[k] / vs - rail.meanSquareV2[k] / v2));
-  else for (let k = 0; k < n; k++) out[k] = rail.meanSquareV2[k] / v2;
+  const model = frameLossModel(driver, device.role, coil.resonanceHz);
+  const alpha = device.rdsOnTempCoeffPerK ?? 0;
+  const hotC = device.tjMaxC - marginK;
+  for (let k = 0; k < n; k++) out[k] = frameLossAtW(model, rail.meanV[k], rail.meanSquareV2[k], alpha, hotC) / fullLossW;
   return out;
 }
 
@@ -204,13 +236,13 @@ export function planClipReport(
 
   const lengths = logSpacedLengthsS(0.001, Math.max(0.001, clip.durationS), 4);
   const demandGainDb = Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity;
-  const fullLoss = fullOperationLossW(driver, coil, settings.ambientC);
+  const fullLoss = fullOperationLossW(driver, coil, settings);
   const used = driver.devices.map((d, i) => ({ d, i })).filter(({ d }) => sim.devices.some((s) => s.role === d.role));
   const budget: BudgetCurve[] = used.map(({ d, i }) => {
     const net = ThermalNetwork.fromPath(d.thermal);
     const allowedRiseK = d.tjMaxC - settings.marginK - settings.ambientC;
     const b = dutyBudget(lengths, allowedRiseK, fullLoss[i], (t) => net.zthKPerW(t));
-    const demand = maxWindowMean(demandSeries(clip, driver, demandGainDb, d.role), clip.frames.frameS, lengths);
+    const demand = maxWindowMean(demandSeries(clip, coil, driver, demandGainDb, d, fullLoss[i], settings.marginK), clip.frames.frameS, lengths);
     return {
       role: d.role,
       fullLossW: fullLoss[i],

@@ -7,14 +7,15 @@
 import type { DeviceRole, DriverDevice } from '../../schemas/driver.ts';
 import { ThermalNetwork, type StepCoefficients } from '../thermal/network.ts';
 import { solveElectrothermal, type ElectrothermalSolution } from './electrothermal.ts';
-import { railThirdMomentBoundV3, type LossParts } from './losses.ts';
+import { modulatorSwitchingShare, railThirdMomentBoundV3, type LossParts } from './losses.ts';
 import type { DeviceSimulation, DeviceTraces, ThermalState } from './types.ts';
 
 /**
  * A frame loss model, per switch: with m = E[v] and s = E[v²] of the rail over a frame,
- * I²R part at 25 °C a = rS·s + r3·E3(m, s) and other part b = oM·m + oS·s + oC·[m > 0], where
- * E3 is the upper bound of E[v³] (railThirdMomentBoundV3). Every loss model of ./losses.ts for a
- * rail has this form (see frameLossModel in ./simulate-rail.ts).
+ * I²R part at 25 °C a = rS·s + r3·E3(m, s) and other part b = (oM·m + oC·[m > 0])·h(m) + oS·s, where
+ * E3 is the upper bound of E[v³] (railThirdMomentBoundV3) and h the share of PWM cycles that
+ * switch (modulatorSwitchingShare with `taperV`; h = 1 when taperV is undefined). Every loss model
+ * of ./losses.ts for a rail has this form (see frameLossModel in ./simulate-rail.ts).
  */
 export interface FrameLossModel {
   supplyV: number;
@@ -23,6 +24,32 @@ export interface FrameLossModel {
   oM: number;
   oS: number;
   oC: number;
+  /** Buck modulator only: the width below V_s over which its switching stops (modulatorTaperV), V. */
+  taperV?: number;
+}
+
+/** The I²R part a of {@link FrameLossModel} at 25 °C, W, for a feasible (m, s). */
+export function frameResistiveAt25W(model: FrameLossModel, m: number, s: number): number {
+  return model.rS * s + (model.r3 !== 0 ? model.r3 * railThirdMomentBoundV3(m, s, model.supplyV) : 0);
+}
+
+/** The temperature-independent part b of {@link FrameLossModel}, W, for a feasible (m, s). */
+export function frameOtherW(model: FrameLossModel, m: number, s: number): number {
+  const h = model.taperV === undefined ? 1 : modulatorSwitchingShare(m, model.supplyV, model.taperV);
+  return (model.oM * m + (m > 0 ? model.oC : 0)) * h + model.oS * s;
+}
+
+/**
+ * A frame's loss at a held junction temperature tjC (°C), W: a·(1 + α(Tj − 25)) + b, with (m, s)
+ * first clamped to the feasible set m ∈ [0, V_s], s ∈ [m², V_s·m].
+ *
+ * @example frameLossAtW(frameLossModel(DEMO_DRIVER_LINEAR, 'pass', 300e3), 24, 576, 0, 25) // → 36 W
+ */
+export function frameLossAtW(model: FrameLossModel, meanV: number, meanSquareV2: number, tempCoeffPerK: number, tjC: number): number {
+  const vs = model.supplyV;
+  const m = Math.min(Math.max(meanV, 0), vs);
+  const s = Math.min(Math.max(meanSquareV2, m * m), vs * m);
+  return frameResistiveAt25W(model, m, s) * (1 + tempCoeffPerK * (tjC - 25)) + frameOtherW(model, m, s);
 }
 
 /** Default margin below Tj max for the warning temperature, K (common practice: derate 20–25 K). */
@@ -105,7 +132,7 @@ export class DeviceRun {
 
   /**
    * Runs this switch over all frames of a rail (the hot loop of the rail schemes): per frame k the
-   * loss model gives a = rS·s + r3·E3 and b = oM·m + oS·s + oC·[m > 0] (m = E[v], s = E[v²] clamped to
+   * loss model gives a = rS·s + r3·E3 and b = (oM·m + oC·[m > 0])·h(m) + oS·s (m = E[v], s = E[v²] clamped to
    * the feasible set, E3 = railThirdMomentBoundV3(m, s, V_s)); the electrothermal fixed point over
    * the frame and the exact update are fused into one pass over the modes. Same results as
    * {@link solve} + {@link advance} per frame (the tests check it); written out in one loop so no
@@ -132,7 +159,7 @@ export class DeviceRun {
     const tjMax = this.tjMaxC;
     const amb = this.ambientC;
     const vs = model.supplyV;
-    const { rS, r3, oM, oS, oC } = model;
+    const { rS, r3, oM, oS, oC, taperV } = model;
     const w = this.warnC;
     let free = 0;
     for (let k = 0; k < nm; k++) free += mfs[k] * x[k];
@@ -148,7 +175,8 @@ export class DeviceRun {
       const s = Math.min(Math.max(meanSquareV2[i], m * m), vs * m);
       let a = rS * s;
       if (r3 !== 0) a += r3 * railThirdMomentBoundV3(m, s, vs);
-      const b = oM * m + oS * s + (m > 0 ? oC : 0);
+      const hm = taperV === undefined ? 1 : modulatorSwitchingShare(m, vs, taperV);
+      const b = (oM * m + (m > 0 ? oC : 0)) * hm + oS * s;
       // Electrothermal fixed point over the frame (as solveElectrothermal).
       const tFree = amb + free;
       const loop = a * alpha * h;

@@ -148,7 +148,10 @@ export function railThirdMomentBoundV3(meanV: number, meanSquareV2: number, maxV
  * - IGBT conduction D·I·V_CE(sat) + D·I²·r: V_CE·g·E[v²]/V_s + r·g²·E[v³]/V_s;
  * - switching ½·V_s·I·(t_r + t_f)·f_pwm → ½·V_s·g·E[v]·(t_r + t_f)·f_pwm (hard-switched, clamped
  *   inductive: Mohan et al. eq. 2-6 [recalled]; Graovac et al. 2006 [recalled]);
- * - output capacitance ½·C_oss·V_s²·f_pwm while the modulator switches (E[v] > 0).
+ * - output capacitance ½·C_oss·V_s²·f_pwm while the modulator switches (E[v] > 0);
+ * - both switching parts times the share h(E[v]) of PWM cycles that still switch
+ *   ({@link modulatorSwitchingShare}): at 100 % duty the switch stays on and neither part exists,
+ *   and they fall to zero continuously as the duty approaches it (no step).
  * The freewheel diode's conduction and recovery losses are in another device and neglected here.
  *
  * @example modulatorLossParts(dev, 160, 100e3, 0.025, 80, 6400)
@@ -168,9 +171,37 @@ export function modulatorLossParts(
   const o = out ?? emptyLossParts();
   o.resistiveAt25W = (r * gAPerV * gAPerV * ev3) / supplyV;
   o.conductionFixedW = (vce * gAPerV * Math.max(meanSquareV2, 0)) / supplyV;
-  o.switchingW = 0.5 * supplyV * gAPerV * Math.max(meanV, 0) * (device.riseTimeS + device.fallTimeS) * pwmHz;
-  o.capacitiveW = meanV > 0 ? 0.5 * device.outputCapacitanceF * supplyV * supplyV * pwmHz : 0;
+  const h = modulatorSwitchingShare(meanV, supplyV, modulatorTaperV(device, supplyV, pwmHz));
+  o.switchingW = 0.5 * supplyV * gAPerV * Math.max(meanV, 0) * (device.riseTimeS + device.fallTimeS) * pwmHz * h;
+  o.capacitiveW = meanV > 0 ? 0.5 * device.outputCapacitanceF * supplyV * supplyV * pwmHz * h : 0;
   return o;
+}
+
+/**
+ * Width below the supply, V, over which the buck modulator's switching stops: V_s·(t_r + t_f)·f_pwm.
+ * At duty D the switch is off for (1 − D)/f_pwm per cycle; once that is shorter than its own
+ * turn-off plus turn-on time t_r + t_f it no longer completes a transition, and at D = 1 it stays
+ * on (Erickson & Maksimović ch. 2: D = v/V_s). Example: 160 V, 40 ns, 150 kHz → 0.96 V.
+ */
+export function modulatorTaperV(device: Pick<DriverDevice, 'riseTimeS' | 'fallTimeS'>, supplyV: number, pwmHz: number): number {
+  return supplyV * (device.riseTimeS + device.fallTimeS) * pwmHz;
+}
+
+/**
+ * Share of PWM cycles in which the buck modulator switches, as a function of the rail's frame mean
+ * E[v] = m: h(m) = min(1, (V_s − m)/w) with w = {@link modulatorTaperV} (for w = 0: 1 below V_s,
+ * 0 at V_s). A linear fall over the last w volts is an upper bound on the transition energy left
+ * when the off-interval is cut short (the V–I overlap shrinks at least in proportion, the C_oss
+ * energy with the square of the voltage reached). Both switching parts, v·h(v) and h(v) for v > 0,
+ * are concave in v, so by Jensen's inequality E[v·h(v)] ≤ m·h(m) and E[h(v)] ≤ h(m): evaluating at
+ * the frame mean keeps the frame's loss an upper bound (exact for a constant rail).
+ *
+ * @example modulatorSwitchingShare(159.52, 160, 0.96) // → 0.5
+ */
+export function modulatorSwitchingShare(meanV: number, supplyV: number, taperV: number): number {
+  if (meanV >= supplyV) return 0;
+  if (!(taperV > 0)) return 1;
+  return Math.min(1, (supplyV - meanV) / taperV);
 }
 
 /**

@@ -6,17 +6,17 @@ import type { DeviceRole, DriverProfile } from '../../schemas/driver.ts';
 import { checkCoil, setUpRuns } from './common.ts';
 import { railConductanceAPerV } from './currents.ts';
 import type { FrameLossModel } from './device-run.ts';
-import { bridgeLossParts, buckSupplyCurrentA, railMoments, type LossParts } from './losses.ts';
+import { bridgeLossParts, buckSupplyCurrentA, modulatorTaperV, railMoments, type LossParts } from './losses.ts';
 import type { CoilAtResonance, DriverSimulation, RailFrames, SimulationOptions } from './types.ts';
 
 /**
  * The per-switch loss of a role over a rail frame in the form of {@link FrameLossModel}
- * (a = rS·s + r3·E3, b = oM·m + oS·s + oC·[m > 0] with m = E[v], s = E[v²]):
+ * (a = rS·s + r3·E3, b = (oM·m + oC·[m > 0])·h(m) + oS·s with m = E[v], s = E[v²]):
  * - bridge: {@link bridgeLossParts} of {@link railMoments}, which is linear in m and s — split by
  *   evaluating it at (m, s) = (0, 1) and (1, 0);
  * - pass: {@link passLossParts} = g·(V_s·m − s): oM = g·V_s, oS = −g;
  * - modulator: {@link modulatorLossParts}: r3 = R·g²/V_s, oS = V_CE·g/V_s, oM = ½·V_s·g·(t_r+t_f)·f_pwm,
- *   oC = ½·C_oss·V_s²·f_pwm.
+ *   oC = ½·C_oss·V_s²·f_pwm, taperV = V_s·(t_r + t_f)·f_pwm (no switching at 100 % duty).
  * The tests check each against the LossParts functions.
  *
  * @example frameLossModel(DEMO_DRIVER_LINEAR, 'pass', 300e3) // → { oM: 3, oS: −0.0625, … }
@@ -43,6 +43,7 @@ export function frameLossModel(driver: DriverProfile, role: DeviceRole, resonanc
     model.oS = dev.kind === 'igbt' ? ((dev.vceSatV ?? 0) * g) / vs : 0;
     model.oM = 0.5 * vs * g * (dev.riseTimeS + dev.fallTimeS) * f;
     model.oC = 0.5 * dev.outputCapacitanceF * vs * vs * f;
+    model.taperV = modulatorTaperV(dev, vs, f);
   }
   return model;
 }

@@ -4,6 +4,7 @@ import { adviseGain } from '../../../shared/plan/advise.ts';
 import { planSettings } from '../../../shared/plan/evaluate.ts';
 import { GAIN_CONVENTION, fullOperationLossW, planClipReport, preEmphasisAdvice } from '../../../shared/plan/report.ts';
 import { dbToAmp } from '../../../shared/units.ts';
+import { DEMO_DRIVER_BUCK } from '../../../shared/demo/drivers.ts';
 import { COIL, COIL_WITH_CORNER, halfBridgeI2rW, linearDriver, mosfet, planClip, pulseDriver, silence, tone } from './fixtures.ts';
 
 // Invented drivers (fixtures.ts), α = 0 so losses are plain I²R and every figure has a hand value.
@@ -18,7 +19,7 @@ const WEAK = linearDriver(
 
 describe('fullOperationLossW', () => {
   it('is the bridge at full rail and the pass device at half rail (its worst, g·V_s²/4)', () => {
-    const [bridge, pass] = fullOperationLossW(WEAK, COIL, 25);
+    const [bridge, pass] = fullOperationLossW(WEAK, COIL, { marginK: 25 });
     // Bridge (π/2)²·R·g²·V_s² (Erickson & Maksimović §19.1 currents); pass g·V_s²/4 = 36 W (textbook).
     // Float32 traces: 1e-6 relative.
     expect(Math.abs(bridge - halfBridgeI2rW(1, G, 48 * 48)) / bridge).toBeLessThan(1e-6);
@@ -27,7 +28,7 @@ describe('fullOperationLossW', () => {
 
   it('is the loss during a pulse for the pulse scheme: (π/2)²·R·I²', () => {
     const d = pulseDriver(mosfet('bridge', { rKPerW: 0.5, tauS: 0.01, sinkToAmbientKPerW: 1 }, { rdsOnOhm: 0.2 }));
-    const [bridge] = fullOperationLossW(d, COIL, 25);
+    const [bridge] = fullOperationLossW(d, COIL, { marginK: 25 });
     expect(Math.abs(bridge - 0.2 * (Math.PI / 2) ** 2 * 100) / bridge).toBeLessThan(1e-6);
   });
 });
@@ -83,6 +84,34 @@ describe('planClipReport: budget against demand', () => {
     // Steady budget 100 K/(36 W·7.5 K/W) = 0.37 < 1: the long bursts cross.
     expect(p.crossing).not.toBeNull();
     expect(p.budget[p.budget.length - 1]).toBeCloseTo(100 / (36 * 7.5), 3);
+  });
+
+  it("takes the buck modulator's demand from its own loss model: E[v³], E[v] and constant parts", () => {
+    // Demo buck (shared/demo/drivers.ts): V_s = 160 V, g = 4/160 A/V, modulator R = 0.1 Ω, α = 0.008/K,
+    // t_r + t_f = 40 ns, C_oss = 200 pF, f_pwm = 150 kHz; limit 150 − 25 = 125 °C → R factor 1.8.
+    // Hand values from the buck switch's loss terms (Erickson & Maksimović ch. 2; Mohan et al. eq. 2-6
+    // [recalled]): conduction 1.8·R·g²·v³/V_s, switching ½·V_s·g·v·(t_r+t_f)·f, C_oss ½·C·V_s²·f, the last
+    // two times (V_s − v)/w within w = V_s·(t_r+t_f)·f = 0.96 V of the supply (no switching at 100 %).
+    const d = DEMO_DRIVER_BUCK;
+    const g = 4 / 160;
+    const loss = (v: number) => {
+      const h = Math.min(1, (160 - v) / 0.96);
+      return (1.8 * 0.1 * g * g * v ** 3) / 160 + (0.5 * 160 * g * v * 40e-9 * 150e3 + 0.5 * 200e-12 * 160 * 160 * 150e3) * h;
+    };
+    // Silence puts the rail at V_s/2: 0.36 + 0.96 + 0.384 = 1.704 W. The worst constant point is where
+    // the taper starts (the loss rises below it and falls along it): 159.04 V.
+    expect(loss(80)).toBeCloseTo(1.704, 12);
+    const full = fullOperationLossW(d, COIL, { marginK: 25 });
+    expect(Math.abs(full[1] - loss(159.04)) / full[1]).toBeLessThan(1e-12);
+    expect(loss(159.04)).toBeGreaterThan(Math.max(loss(158), loss(159.5), loss(160)));
+    const r = planClipReport(planClip('q', silence(1)), COIL_WITH_CORNER, d, planSettings(d)).report;
+    const mod = r.budget.find((x) => x.role === 'modulator')!;
+    expect(mod.fullLossW).toBeCloseTo(full[1], 12);
+    // 1.704/5.121 ≈ 0.333, not the E[v²]/V_s² = 0.25 a bridge would show.
+    for (const m of mod.demand) expect(Math.abs(m - 1.704 / loss(159.04))).toBeLessThan(1e-9);
+    expect(mod.demand[0]).toBeGreaterThan(0.33);
+    // The MOSFET bridge's demand stays E[v²]/V_s² = ¼ on silence (its loss is R·k²·g²·E[v²] + switching ∝ E[v²]).
+    for (const m of r.budget.find((x) => x.role === 'bridge')!.demand) expect(m).toBeCloseTo(0.25, 9);
   });
 
   it('uses the on-time fraction as the demand of the pulse scheme', () => {

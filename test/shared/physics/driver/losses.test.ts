@@ -4,6 +4,8 @@ import {
   bridgeLossParts,
   buckSupplyCurrentA,
   modulatorLossParts,
+  modulatorSwitchingShare,
+  modulatorTaperV,
   passLossParts,
   railMoments,
   railThirdMomentBoundV3,
@@ -206,5 +208,30 @@ describe('modulatorLossParts', () => {
     // IGBT: D·I·V_CE = 0.5·2 A·1.9 V = 1.9 W at a constant 80 V rail (hand calculation).
     const ig = modulatorLossParts({ ...IGBT, role: 'modulator' }, 160, 150e3, 0.025, 80, 6400);
     expect(Math.abs(ig.conductionFixedW - 1.9)).toBeLessThan(1e-12);
+  });
+
+  it('stops switching at 100 % duty, falling to zero without a step as the duty approaches it', () => {
+    // Demo-like buck: 160 V, 150 kHz, t_r + t_f = 40 ns → taper width 160·40e-9·150e3 = 0.96 V
+    // (hand calculation). At D = 1 the switch stays on: conduction only, D·I²·R = 4²·0.1 = 1.6 W.
+    const dev: DriverDevice = { ...MOSFET, role: 'modulator', rdsOnOhm: 0.1, riseTimeS: 20e-9, fallTimeS: 20e-9, outputCapacitanceF: 200e-12 };
+    const g = 0.025;
+    expect(Math.abs(modulatorTaperV(dev, 160, 150e3) - 0.96)).toBeLessThan(1e-12);
+    const full = modulatorLossParts(dev, 160, 150e3, g, 160, 25600);
+    expect(full.switchingW).toBe(0);
+    expect(full.capacitiveW).toBe(0);
+    expect(Math.abs(full.resistiveAt25W - 1.6)).toBeLessThan(1e-12);
+    // Just below: switching ½·V_s·g·v·(t_r+t_f)·f·h and C_oss ½·C·V_s²·f·h with h = (160 − v)/0.96.
+    const v = 160 - 0.48;
+    const half = modulatorLossParts(dev, 160, 150e3, g, v, v * v);
+    expect(Math.abs(half.switchingW - 0.5 * 160 * g * v * 40e-9 * 150e3 * 0.5)).toBeLessThan(1e-12);
+    expect(Math.abs(half.capacitiveW - 0.5 * 200e-12 * 160 * 160 * 150e3 * 0.5)).toBeLessThan(1e-12);
+    // Continuity: the loss 1 µV below 100 % duty is within 1e-5 W of the loss at 100 %.
+    const near = modulatorLossParts(dev, 160, 150e3, g, 160 - 1e-6, (160 - 1e-6) ** 2);
+    const sum = (p: typeof near) => p.resistiveAt25W + p.switchingW + p.capacitiveW;
+    expect(Math.abs(sum(near) - sum(full))).toBeLessThan(1e-5);
+    // Below the taper every cycle switches; an ideal switch (w = 0) stops only at V_s.
+    expect(modulatorSwitchingShare(159, 160, 0.96)).toBe(1);
+    expect(modulatorSwitchingShare(159.99, 160, 0)).toBe(1);
+    expect(modulatorSwitchingShare(160, 160, 0)).toBe(0);
   });
 });

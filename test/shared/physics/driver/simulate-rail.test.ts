@@ -2,8 +2,9 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../../shared/demo/drivers.ts';
 import { steadyJunctionC } from '../../../../shared/physics/driver/electrothermal.ts';
-import { bridgeLossParts, modulatorLossParts, passLossParts, railMoments, railThirdMomentBoundV3 } from '../../../../shared/physics/driver/losses.ts';
+import { bridgeLossParts, modulatorLossParts, passLossParts, railMoments } from '../../../../shared/physics/driver/losses.ts';
 import { frameLossModel, simulateRail } from '../../../../shared/physics/driver/simulate-rail.ts';
+import { frameOtherW, frameResistiveAt25W } from '../../../../shared/physics/driver/device-run.ts';
 import { ThermalNetwork } from '../../../../shared/physics/thermal/network.ts';
 import type { DriverProfile } from '../../../../shared/schemas/driver.ts';
 
@@ -185,7 +186,7 @@ describe('simulateRail: rail-switched, runaway, warnings, input checks', () => {
           const other = (p: { conductionFixedW: number; switchingW: number; capacitiveW: number }) => p.conductionFixedW + p.switchingW + p.capacitiveW;
           const evalModel = (role: 'bridge' | 'pass' | 'modulator') => {
             const f = frameLossModel(d, role, COIL.resonanceHz);
-            return [f.rS * s + f.r3 * railThirdMomentBoundV3(m, s, vs), f.oM * m + f.oS * s + (m > 0 ? f.oC : 0)];
+            return [frameResistiveAt25W(f, m, s), frameOtherW(f, m, s)];
           };
           const pb = bridgeLossParts(d.devices[0], d.topology, COIL.resonanceHz, railMoments(g, m, s));
           const [ra, oa] = evalModel('bridge');
