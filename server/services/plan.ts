@@ -24,6 +24,10 @@ export const keepOutFigures = (coil: CoilReport) => ({
   breakdownGapM: coil.voltage.breakdownGapM,
   arcReachM: coil.voltage.arcReachM,
   keepOutM: coil.keepOutM,
+  keepOutSetBy: coil.keepOutSetBy,
+  breakdownFieldVPerM: coil.voltage.breakdownFieldVPerM,
+  inputPowerW: coil.voltage.inputPowerW,
+  inputPowerBasis: coil.voltage.inputPowerBasis,
   basis: coil.voltage.basis,
 });
 

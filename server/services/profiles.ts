@@ -13,14 +13,24 @@ import { readJsonFile } from './read-json.ts';
  * The coil report. With the driver, its figures feed the coil's voltage bound and arc reach (and
  * so the keep-out distance): supply voltage and full-rail current for the input power, and for
  * the pulse scheme the longest on-time for the energy bound (a continuous rail has no per-pulse
- * energy, so only the arc-reach rule applies there).
+ * energy, so only the arc-reach rule applies there) and the mean input power V·I·maxDuty for the
+ * arc-reach rule (rail schemes: V·I, continuous full drive).
  */
 export function coilReportFor(profile: CoilProfile, driver?: DriverProfile): CoilReport {
   if (!driver) return analyzeCoil(profile);
+  const pulse = driver.scheme === 'pulse' ? driver.pulse : undefined;
   return analyzeCoil(profile, {
     supplyVoltageV: driver.supplyVoltageV,
     fullRailCurrentA: driver.fullRailCurrentA,
-    ...(driver.scheme === 'pulse' && driver.pulse ? { pulseOnTimeS: driver.pulse.maxOnTimeS } : {}),
+    // The arc-reach rule wants the MEAN input power: a pulse driver draws V·I only while on, so its
+    // highest mean over a clip is V·I times the profile's overall duty limit.
+    ...(pulse
+      ? {
+          pulseOnTimeS: pulse.maxOnTimeS,
+          inputPowerW: driver.supplyVoltageV * driver.fullRailCurrentA * pulse.maxDuty,
+          inputPowerBasis: `supply voltage × full-rail current × the profile's maximum duty ${(pulse.maxDuty * 100).toFixed(3).replace(/\.?0+$/, '')} %: the highest mean over a whole clip`,
+        }
+      : {}),
   });
 }
 

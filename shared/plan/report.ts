@@ -80,7 +80,13 @@ export interface PlanReport {
   unsafeOnSilence: boolean;
   evaluatedGainDb: number;
   devices: DeviceFigures[];
-  supply: { peakCurrentA: number; meanCurrentA: number; limitA: number };
+  /**
+   * Supply current. peakCurrentA is what the limit (the most current the supply may deliver, an
+   * instantaneous figure) is checked against: for the pulse scheme the current during a pulse
+   * (`peakIs: 'pulse-current'`, the same in every pulse), for rail schemes the highest mean over
+   * one frame of `peakWindowS` (`'frame-mean'`). meanCurrentA is the mean over the whole clip.
+   */
+  supply: { peakCurrentA: number; peakIs: 'pulse-current' | 'frame-mean'; peakWindowS: number | null; meanCurrentA: number; limitA: number };
   overModulationFraction: number;
   overModulationTimeS: number;
   pulses: Evaluation['pulses'];
@@ -267,7 +273,13 @@ export function planClipReport(
     unsafeOnSilence: advice.unsafeOnSilence,
     evaluatedGainDb,
     devices,
-    supply: { peakCurrentA: sim.supply.peakCurrentA, meanCurrentA: sim.supply.meanCurrentA, limitA: driver.supplyCurrentLimitA },
+    supply: {
+      peakCurrentA: sim.supply.peakCurrentA,
+      peakIs: driver.scheme === 'pulse' ? 'pulse-current' : 'frame-mean',
+      peakWindowS: driver.scheme === 'pulse' ? null : clip.frames.frameS,
+      meanCurrentA: sim.supply.meanCurrentA,
+      limitA: driver.supplyCurrentLimitA,
+    },
     overModulationFraction: evaluation.overModulationFraction,
     overModulationTimeS: evaluation.overModulationTimeS,
     pulses: evaluation.pulses,

@@ -49,7 +49,11 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
   for (const d of r.devices) {
     out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
   }
-  out.push(`  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (1 ms mean; limit ${r.supply.limitA} A), mean ${r.supply.meanCurrentA.toFixed(2)} A`);
+  out.push(
+    r.supply.peakIs === 'pulse-current'
+      ? `  supply    current during a pulse ${r.supply.peakCurrentA.toFixed(2)} A (instantaneous; limit ${r.supply.limitA} A), mean over the clip ${r.supply.meanCurrentA.toFixed(2)} A`
+      : `  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (highest ${formatEng(r.supply.peakWindowS ?? 0, 's')} mean; limit ${r.supply.limitA} A), mean over the clip ${r.supply.meanCurrentA.toFixed(2)} A`,
+  );
   out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
   if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}`);
   out.push('headroom of every limit at that gain:');
@@ -75,7 +79,11 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
   if (coil.keepOutM !== null) {
     const v = coil.voltage;
     out.push(
-      `keep-out: at least ${coil.keepOutM.toFixed(2)} m from the top load (${v.topVoltageBoundV !== null ? `top voltage bound ${formatEng(v.topVoltageBoundV, 'V')}, breakdown gap ${formatEng(v.breakdownGapM, 'm')}, ` : ''}arc-reach rule ${formatEng(v.arcReachM, 'm')}, ×${v.safetyFactor}); real arcs can reach farther`,
+      `keep-out: at least ${coil.keepOutM.toFixed(2)} m from the top load, set by the ${coil.keepOutSetBy === 'arc-reach' ? 'arc reach' : 'breakdown gap'} ×${v.safetyFactor} (` +
+        (v.topVoltageBoundV !== null
+          ? `top voltage at most ${formatEng(v.topVoltageBoundV, 'V')} (energy bound, C ${v.boundCapacitanceFrom === 'measured-resonance' ? 'from the measured resonance' : 'computed'}), breakdown gap ${formatEng(v.breakdownGapM, 'm')} at ${v.breakdownFieldVPerM / 1e6} MV/m (long gap), `
+          : '') +
+        `arc reach ${formatEng(v.arcReachM, 'm')} by Freau's rule on the mean input power ${v.inputPowerW !== null ? formatEng(v.inputPowerW, 'W') : '—'}${v.inputPowerBasis ? `, ${v.inputPowerBasis}` : ''}); real arcs can reach farther`,
     );
   }
   out.push(r.gainConvention);

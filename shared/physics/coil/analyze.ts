@@ -19,9 +19,12 @@ import {
   AIR_BREAKDOWN_V_PER_M,
   COIL_CAUTIONS,
   KEEP_OUT_SAFETY_FACTOR,
+  LONG_GAP_BREAKDOWN_V_PER_M,
   airBreakdownGapM,
   arcReachM,
+  capacitanceFromResonanceF,
   energyBoundVoltageV,
+  keepOutDistance,
 } from './voltage.ts';
 import {
   copperDcResistanceOhm,
@@ -39,8 +42,13 @@ export interface CoilDriveContext {
   fullRailCurrentA?: number;
   /** Longest single on-time (one burst of drive), s. */
   pulseOnTimeS?: number;
-  /** Average input power, W (default supplyVoltageV × fullRailCurrentA, an upper bound). */
+  /**
+   * MEAN input power, W, averaged over seconds (the arc-reach rule's basis; never the peak during a
+   * burst). Default supplyVoltageV × fullRailCurrentA: continuous full drive, an upper bound.
+   */
   inputPowerW?: number;
+  /** Where inputPowerW comes from and over which window it is a mean, in words (for the report). */
+  inputPowerBasis?: string;
   /** Wire temperature in operation, °C (default 40 °C: assumed warm-running). */
   wireTempC?: number;
 }
@@ -108,18 +116,28 @@ export interface CoilReport {
   voltage: {
     /** V·I·t_on, J; null without all three drive figures. */
     energyJ: number | null;
-    /** √(2E/C_total), V. */
+    /** Upper bound √(2E/C) with C = boundCapacitanceF, V. */
     topVoltageBoundV: number | null;
-    /** topVoltageBoundV / 3 MV/m, m. */
+    /** The capacitance of the bound, F: implied by the measured resonance, 1/((2π f)²L), else the computed total. */
+    boundCapacitanceF: number;
+    boundCapacitanceFrom: 'measured-resonance' | 'computed';
+    /** Long-gap mean breakdown field used for the gap, V/m. */
+    breakdownFieldVPerM: number;
+    /** topVoltageBoundV / breakdownFieldVPerM, m. */
     breakdownGapM: number | null;
+    /** Mean input power of the arc-reach rule, W. */
     inputPowerW: number | null;
-    /** 1.7 in·√W, m. */
+    /** Where that mean power comes from and its averaging window, in words. */
+    inputPowerBasis: string | null;
+    /** Freau's rule 1.7 in·√W on the mean input power, m. */
     arcReachM: number | null;
     safetyFactor: number;
     basis: string;
   };
   /** safetyFactor × max(breakdownGapM, arcReachM); null without drive figures. */
   keepOutM: number | null;
+  /** Which of the two set the keep-out distance; null without drive figures. */
+  keepOutSetBy: 'breakdown-gap' | 'arc-reach' | null;
   cautions: string[];
   notes: string[];
 }
@@ -197,12 +215,21 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   );
 
   const energyJ = supplyV !== undefined && railA !== undefined && onS !== undefined ? supplyV * railA * onS : null;
-  const vBound = energyJ === null ? null : energyBoundVoltageV(energyJ, cTotal);
+  // A measured resonance fixes the capacitance the coil really has (a resonance above the computed
+  // one means less capacitance, so a higher voltage for the same energy).
+  const cBound = f0Measured !== null ? capacitanceFromResonanceF(f0Measured, L2) : cTotal;
+  const vBound = energyJ === null ? null : energyBoundVoltageV(energyJ, cBound);
   const gap = vBound === null ? null : airBreakdownGapM(vBound);
   const pIn = powerIn ?? (supplyV !== undefined && railA !== undefined ? supplyV * railA : null);
+  const pInBasis =
+    pIn === null
+      ? null
+      : powerIn !== undefined
+        ? (drive.inputPowerBasis ?? 'the mean input power given, averaged over seconds')
+        : 'supply voltage × full-rail current: continuous full drive, the highest mean the driver can draw';
   const arc = pIn === null ? null : arcReachM(pIn);
-  const reach = [gap, arc].filter((x): x is number => x !== null);
-  const keepOutM = reach.length ? KEEP_OUT_SAFETY_FACTOR * Math.max(...reach) : null;
+  const keepOut = keepOutDistance(gap, arc, KEEP_OUT_SAFETY_FACTOR);
+  const keepOutM = keepOut?.keepOutM ?? null;
 
   const byModel = {
     medhurstTableHz: resonanceHz(L2, models.medhurstTableF + cOther),
@@ -265,13 +292,22 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
     voltage: {
       energyJ,
       topVoltageBoundV: vBound,
+      boundCapacitanceF: cBound,
+      boundCapacitanceFrom: f0Measured !== null ? 'measured-resonance' : 'computed',
+      breakdownFieldVPerM: LONG_GAP_BREAKDOWN_V_PER_M,
       breakdownGapM: gap,
       inputPowerW: pIn,
+      inputPowerBasis: pInBasis,
       arcReachM: arc,
       safetyFactor: KEEP_OUT_SAFETY_FACTOR,
-      basis: `Upper bound: the energy of one longest on-time at full rail power (V·I·t_on), transferred losslessly to the secondary's total capacitance, V = √(2E/C); breakdown gap at ${AIR_BREAKDOWN_V_PER_M / 1e6} MV/m (dry air, uniform field); arc reach by the builders' rule 1.7 in·√W for spark-gap coils (an extrapolation here). Real arcs can reach farther.`,
+      basis:
+        `Top voltage is an upper bound, not an estimate: the energy of one longest on-time at full rail power (V·I·t_on), transferred losslessly to the capacitance at the top, V = √(2E/C), with C ${f0Measured !== null ? 'implied by the measured resonance, 1/((2π f)²·L)' : 'computed from the geometry (measure the resonance to pin it)'}; ` +
+        `breakdown gap at the long-gap mean field ${LONG_GAP_BREAKDOWN_V_PER_M / 1e6} MV/m (rod–plane gaps of a metre and more; a uniform millimetre gap holds ${AIR_BREAKDOWN_V_PER_M / 1e6} MV/m, far more); ` +
+        `arc reach by Freau's rule 1.7 in·√W on the mean input power (${pInBasis ?? 'not given'}), fitted to spark-gap coils (an extrapolation here); ` +
+        `the keep-out is ${KEEP_OUT_SAFETY_FACTOR} × the larger of the two${keepOut ? `, here the ${keepOut.setBy === 'arc-reach' ? 'arc reach' : 'breakdown gap'}` : ''}. Real arcs can reach farther.`,
     },
     keepOutM,
+    keepOutSetBy: keepOut?.setBy ?? null,
     cautions: [...COIL_CAUTIONS],
     notes,
   };

@@ -5,11 +5,22 @@
  */
 
 /**
- * Dielectric strength of dry air, V/m: ≈ 3 MV/m (3 kV/mm) for uniform fields at sea level
- * (American Meteorological Society, *Glossary of Meteorology*, "dielectric strength"). Sharp edges
- * start corona far lower; metre-scale gaps break down near 0.6 MV/m average.
+ * Dielectric strength of dry air in a uniform field across a short (millimetre to centimetre)
+ * gap, V/m: ≈ 3 MV/m (3 kV/mm) at sea level (American Meteorological Society, *Glossary of
+ * Meteorology*, "dielectric strength"). NOT the figure for a coil's clearance: see
+ * {@link LONG_GAP_BREAKDOWN_V_PER_M}.
  */
 export const AIR_BREAKDOWN_V_PER_M = 3e6;
+
+/**
+ * Mean breakdown field of a long air gap, V/m: 0.5 MV/m (500 kV/m). Across gaps of a metre and
+ * more from a sharp or small electrode (rod–plane), leaders form and the gap breaks down at an
+ * average gradient near 0.5–0.6 MV/m for positive impulses, falling further with gap length
+ * (Les Renardières Group, "Positive discharges in long air gaps at Les Renardières", Electra 53,
+ * 1977; Kuffel, Zaengl & Kuffel, *High Voltage Engineering: Fundamentals*, 2nd ed., 2000, §5.9,
+ * long-gap breakdown [recalled]). The lower end of that range is taken: it gives the longer gap.
+ */
+export const LONG_GAP_BREAKDOWN_V_PER_M = 0.5e6;
 
 /** Safety factor applied to clearance and arc reach when forming the keep-out distance. */
 export const KEEP_OUT_SAFETY_FACTOR = 2;
@@ -26,17 +37,44 @@ export const ARC_REACH_M_PER_SQRT_W = 1.7 * 0.0254;
 export const energyBoundVoltageV = (energyJ: number, capacitanceF: number): number => Math.sqrt((2 * energyJ) / capacitanceF);
 
 /**
- * Gap that `voltageV` would just break down in a uniform field of dry air, m: V/(3 MV/m).
- * Example: airBreakdownGapM(300e3) = 0.1 m.
+ * Gap that `voltageV` would just break down across, m: V/E with the long-gap field
+ * E = {@link LONG_GAP_BREAKDOWN_V_PER_M} (0.5 MV/m) unless another is given.
+ * Example: airBreakdownGapM(300e3) = 0.6 m.
  */
-export const airBreakdownGapM = (voltageV: number, breakdownVPerM = AIR_BREAKDOWN_V_PER_M): number => voltageV / breakdownVPerM;
+export const airBreakdownGapM = (voltageV: number, breakdownVPerM = LONG_GAP_BREAKDOWN_V_PER_M): number => voltageV / breakdownVPerM;
 
 /**
- * Empirical arc length from input power, m: length[in] ≈ 1.7·√(input W), i.e. 4.32 cm·√W (the rule
- * circulated among coil builders, 2005, fitted to spark-gap coils; applying it to solid-state or
- * audio-modulated drive is an extrapolation). Example: arcReachM(100) = 0.432 m.
+ * Capacitance at the top of the secondary implied by a resonance, F: C = 1/((2π·f)²·L). When the
+ * resonance is measured this is the capacitance the coil really has; a measured resonance above
+ * the computed one means less capacitance and so a higher voltage for the same energy.
+ * Example: capacitanceFromResonanceF(300e3, 30e-3) = 9.38 pF.
  */
-export const arcReachM = (inputPowerW: number): number => ARC_REACH_M_PER_SQRT_W * Math.sqrt(inputPowerW);
+export const capacitanceFromResonanceF = (resonanceHz: number, inductanceH: number): number => 1 / ((2 * Math.PI * resonanceHz) ** 2 * inductanceH);
+
+/**
+ * Keep-out distance, m: safetyFactor × the larger of the breakdown gap and the arc reach (either
+ * may be missing), and which of the two set it; null when both are missing.
+ * Example: keepOutDistance(0.6, 0.4) = { keepOutM: 1.2, setBy: 'breakdown-gap' }.
+ */
+export function keepOutDistance(
+  gapM: number | null,
+  arcM: number | null,
+  safetyFactor = KEEP_OUT_SAFETY_FACTOR,
+): { keepOutM: number; setBy: 'breakdown-gap' | 'arc-reach' } | null {
+  if (gapM === null && arcM === null) return null;
+  if (arcM === null || (gapM !== null && gapM >= arcM)) return { keepOutM: safetyFactor * gapM!, setBy: 'breakdown-gap' };
+  return { keepOutM: safetyFactor * arcM, setBy: 'arc-reach' };
+}
+
+/**
+ * Empirical arc length from MEAN input power, m: length[in] ≈ 1.7·√(P_in[W]), i.e. 4.32 cm·√W —
+ * J. Freau's rule, circulated among coil builders (Tesla Coil Mailing List, c. 2000–2005
+ * [recalled]), fitted to spark-gap coils whose input power is a wall-plug average; applying it to
+ * solid-state or audio-modulated drive is an extrapolation. The power is the average drawn over
+ * seconds, not the peak during a burst. Example (the rule's own worked value): arcReachM(100) =
+ * 17 in = 0.432 m.
+ */
+export const arcReachM = (meanInputPowerW: number): number => ARC_REACH_M_PER_SQRT_W * Math.sqrt(meanInputPowerW);
 
 /** Cautions every coil report carries, in plain words. */
 export const COIL_CAUTIONS: readonly string[] = [
