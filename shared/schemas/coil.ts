@@ -45,6 +45,13 @@ export const PrimarySchema = Type.Object(
     turns: Type.Integer({ minimum: 1, maximum: 100, description: 'number of primary turns (a whole number)' }),
     diameterM: Type.Number({ minimum: 0.01, maximum: 3, description: 'diameter of the primary turns through the wire centres, in m' }),
     windingLengthM: Type.Number({ minimum: 0.001, maximum: 1, description: 'axial length of the primary winding, in m' }),
+    wireDiameterM: Type.Optional(
+      Type.Number({
+        minimum: 0.0001,
+        maximum: 0.05,
+        description: 'diameter of the primary conductor, in m (optional: with it the inductance is summed turn by turn, which corrects the current sheet for thin, widely spaced turns)',
+      }),
+    ),
     offsetM: Type.Number({
       minimum: -2,
       maximum: 5,
@@ -227,6 +234,13 @@ export function parseCoilProfile(json: unknown): CoilProfile {
     fail(
       'secondary.turns',
       `secondary.turns × secondary.wireDiameterM = ${s.turns} × ${s.wireDiameterM} m = ${+layerM.toPrecision(6)} m exceeds secondary.windingLengthM = ${s.windingLengthM} m, so the turns do not fit in one layer; coilcue models single-layer secondaries only: use fewer turns, thinner wire or a longer winding.`,
+    );
+  }
+  const pw = p.primary.wireDiameterM;
+  if (pw !== undefined && p.primary.turns > 1 && p.primary.turns * pw > p.primary.windingLengthM * (1 + 1e-9)) {
+    fail(
+      'primary.wireDiameterM',
+      `primary.turns × primary.wireDiameterM = ${p.primary.turns} × ${pw} m exceeds primary.windingLengthM = ${p.primary.windingLengthM} m, so the turns overlap; check the conductor diameter and the winding length (first turn's centre to last turn's centre plus one pitch).`,
     );
   }
   if (p.topLoad.shape === 'torus' && !(p.topLoad.tubeDiameterM < p.topLoad.outerDiameterM / 2)) {

@@ -110,7 +110,15 @@ export interface CoilReport {
   qualityFactorMeasured: number | null;
   modulationCornerHz: number;
   ringUpTauS: number;
-  primary: { meanDiameterM: number; nagaokaK: number; inductanceH: number };
+  primary: {
+    meanDiameterM: number;
+    nagaokaK: number;
+    /** Turn-by-turn sum when the conductor diameter is given (method 'turn-sum'), else the current sheet. */
+    inductanceH: number;
+    inductanceMethod: 'turn-sum' | 'current-sheet';
+    /** Current sheet with Nagaoka's coefficient (low by up to ~8 % for thin, widely spaced turns). */
+    inductanceCurrentSheetH: number;
+  };
   mutualInductanceH: number;
   couplingK: number;
   voltage: {
@@ -208,7 +216,11 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   const q = qMeasured ?? qComputed;
 
   const pr = profile.primary;
-  const L1 = currentSheetInductanceH(pr.diameterM, pr.windingLengthM, pr.turns);
+  // Thin, widely spaced primary turns carry more inductance than the current sheet (Rosa's
+  // round-wire correction A = 5/4 − ln(2p/d) turns negative for p/d > 1.7): with the conductor's
+  // diameter the turn-by-turn sum is used, which includes that correction.
+  const L1Sheet = currentSheetInductanceH(pr.diameterM, pr.windingLengthM, pr.turns);
+  const L1 = pr.wireDiameterM !== undefined ? turnSumInductanceH(pr.diameterM, pr.windingLengthM, pr.turns, pr.wireDiameterM) : L1Sheet;
   const M = windingMutualInductanceH(
     { radiusM: D / 2, centreM: l / 2, lengthM: l, turns: N },
     { radiusM: pr.diameterM / 2, centreM: pr.offsetM, lengthM: pr.windingLengthM, turns: pr.turns },
@@ -244,6 +256,9 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
     'AC resistance is that of an isolated round wire (skin effect only); the proximity of neighbouring turns raises it further, so the computed Q is an upper bound.',
   ];
   if (!medhurstTableCovers(l / D)) notes.push(`l/D = ${(l / D).toFixed(3)} lies outside Medhurst's table (0.1 to 50); the self-capacitance is extrapolated with the Radiotron fit.`);
+  if (pr.wireDiameterM === undefined) {
+    notes.push("Primary inductance is the current sheet: for thin, widely spaced turns it reads low (up to about 8 %), which overstates the coupling by up to about 4 %; give primary.wireDiameterM to sum it turn by turn.");
+  }
   if (f0Measured !== null) notes.push('Measured resonance used for the resonance, skin depth, AC resistance and modulation corner.');
   if (energyJ === null) notes.push('No top-voltage bound: give supply voltage, full-rail current and on-time.');
   if (pIn === null) notes.push('No arc-reach estimate: give the input power (or supply voltage and full-rail current).');
@@ -286,7 +301,13 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
     qualityFactorMeasured: qMeasured,
     modulationCornerHz: modulationCornerHz(f0, q),
     ringUpTauS: ringUpTauS(f0, q),
-    primary: { meanDiameterM: pr.diameterM, nagaokaK: nagaokaCoefficient(pr.diameterM / pr.windingLengthM), inductanceH: L1 },
+    primary: {
+      meanDiameterM: pr.diameterM,
+      nagaokaK: nagaokaCoefficient(pr.diameterM / pr.windingLengthM),
+      inductanceH: L1,
+      inductanceMethod: pr.wireDiameterM !== undefined ? 'turn-sum' : 'current-sheet',
+      inductanceCurrentSheetH: L1Sheet,
+    },
     mutualInductanceH: M,
     couplingK: couplingCoefficient(M, L1, L2),
     voltage: {

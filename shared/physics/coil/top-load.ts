@@ -48,8 +48,8 @@ export function torusCapacitanceF(outerDiameterM: number, tubeDiameterM: number)
 
 /**
  * Thin-ring limit of the isolated torus, r ≪ R: C ≈ 4π²ε0·R/ln(8R/r) (the leading term of the
- * toroidal series as η0 → ∞; Smythe 1950). It reads high; the relative error falls roughly like (r/R)² (0.66 % at r/R = 0.1,
- * 0.012 % at 0.01).
+ * toroidal series as η0 → ∞; Smythe 1950). It reads LOW (below the exact series); the relative
+ * error falls roughly like (r/R)² (−0.66 % at r/R = 0.1, −0.012 % at 0.01).
  * Example: thinRingCapacitanceF(1, 0.1) = 79.77 pF (exact series: 80.30 pF).
  */
 export function thinRingCapacitanceF(ringRadiusM: number, tubeRadiusM: number): number {

@@ -131,6 +131,27 @@ describe('measured figures and drive context', () => {
     expect(rel(m.voltage.breakdownGapM!, 1.2 * computed.voltage.breakdownGapM!)).toBeLessThan(1e-12);
   });
 
+  it("sums a thin, widely spaced primary turn by turn: above the current sheet by Rosa's correction", () => {
+    // Desk primary: 4 turns, D = 100 mm, l = 12 mm (pitch 3 mm), 1 mm conductor. Rosa's round-wire
+    // correction L = L_sheet − μ0·a·N·(A + B), A = 5/4 − ln(2p/d), B(4) = 0.1973 (E. B. Rosa, Bull.
+    // Bur. Stand. 2, 1906; Grover 1946, table of B [recalled]): +2.86 % here. The turn sum is an
+    // independent route (loop self-inductances and Maxwell mutuals); they agree to 0.05 %.
+    const wide: CoilProfile = { ...desk, primary: { ...desk.primary, wireDiameterM: 0.001 } };
+    const r = analyzeCoil(wide);
+    const sheet = analyzeCoil(desk);
+    const a = 0.05;
+    const A = 1.25 - Math.log((2 * 0.003) / 0.001);
+    const rosa = sheet.primary.inductanceH - 4e-7 * Math.PI * a * 4 * (A + 0.1973);
+    expect(r.primary.inductanceMethod).toBe('turn-sum');
+    expect(sheet.primary.inductanceMethod).toBe('current-sheet');
+    expect(r.primary.inductanceCurrentSheetH).toBe(sheet.primary.inductanceH);
+    expect(rel(r.primary.inductanceH, rosa)).toBeLessThan(5e-4);
+    expect(r.primary.inductanceH / sheet.primary.inductanceH - 1).toBeGreaterThan(0.025);
+    // k = M/√(L1·L2): the sheet overstated it by √(L1/L1_sheet) − 1 ≈ 1.4 % here.
+    expect(rel(sheet.couplingK / r.couplingK, Math.sqrt(r.primary.inductanceH / sheet.primary.inductanceH))).toBeLessThan(1e-12);
+    expect(sheet.notes.join(' ')).toMatch(/primary\.wireDiameterM/);
+  });
+
   it('without drive figures gives no bound and says so', () => {
     const r = analyzeCoil(desk);
     expect(r.keepOutM).toBeNull();
