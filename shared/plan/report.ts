@@ -2,7 +2,7 @@
  * The answer for one clip on one coil and driver: the advised gain and the limit that binds, the
  * figures at the evaluated gain, the duty-cycle budget against the clip's demand, an advised
  * peak-limiter ceiling and, where the clip's energy lies above the coil's modulation corner,
- * pre-emphasis advice. JSON-safe apart from the typed arrays of `traces` (kept out of the JSON).
+ * pre-emphasis advice that holds across the corner's range. JSON-safe apart from the typed arrays of `traces` (kept out of the JSON).
  */
 import type { WelchSpectrum } from '../dsp/welch.ts';
 import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
@@ -57,16 +57,31 @@ export interface BudgetCurve {
   crossing: { lengthS: number; demand: number; budget: number } | null;
 }
 
+/** The modulation corner as a range of Hz (lowHz = highHz when the coil's Q is measured). */
+export interface CornerRangeHz {
+  lowHz: number;
+  highHz: number;
+}
+
 export interface PreEmphasisAdvice {
-  /** Share of the clip's power above the modulation corner. */
+  /** Share of the clip's power above cornerHz. */
   energyAboveCornerFraction: number;
-  /** Power-weighted loss the coil's first-order envelope response inflicts on the clip, dB. */
+  /**
+   * Power-weighted loss the coil's first-order envelope response inflicts on the clip at the HIGH
+   * end of the corner range (the least loss the coil can cause: what holds across the range), dB.
+   */
   envelopeLossDb: number;
-  /** Advise a boost: true when the loss exceeds 1 dB. */
+  /** The loss at each end of the corner range, dB: the most (low corner) and the least (high corner). */
+  envelopeLossRangeDb: { atLowCornerDb: number; atHighCornerDb: number };
+  /** Advise a boost: true when envelopeLossDb (the least loss over the range) exceeds 1 dB. */
   advised: boolean;
-  /** A first-order high shelf starting at the corner, with this gain (≤ 12 dB), dB. */
+  /** Where the advised first-order high shelf starts: the high end of the corner range, Hz. */
   cornerHz: number;
+  cornerRangeHz: CornerRangeHz;
+  /** The shelf's gain (≤ 12 dB), from envelopeLossDb, dB. */
   shelfGainDb: number;
+  /** Why this much and no more, in words. */
+  basis: string;
 }
 
 export interface PlanReport {
@@ -98,7 +113,10 @@ export interface PlanReport {
   /** Peak-limiter ceiling on the modulation source before the gain, dBFS: the level whose gained sample reaches full swing. */
   limiterCeilingDbfs: number;
   preEmphasis: PreEmphasisAdvice | null;
+  /** The coil's f0/(2Q) at its own (measured, else computed) Q. */
   modulationCornerHz: number;
+  /** The corner as a range (see CoilReport.modulationCornerRangeHz); one value when Q is measured. */
+  modulationCornerRangeHz: CornerRangeHz;
   warnings: string[];
   searchEvaluations: number;
 }
@@ -141,14 +159,8 @@ export function fullOperationLossW(driver: DriverProfile, coil: CoilAtResonance,
 /** Grid points per sweep of fullOperationLossW (the losses are smooth: the worst is found to < 0.1 %). */
 const FULL_GRID = 64;
 
-/**
- * Pre-emphasis advice from the clip's spectrum and the coil's modulation corner fc: the coil's
- * envelope follows like a first-order low-pass |H(f)|² = 1/(1 + (f/fc)²) (a resonator driven at
- * resonance, corner f0/(2Q)); the power-weighted loss is 10·log10(ΣP / ΣP·|H|²). A first-order
- * high shelf from fc with that gain (at most 12 dB) restores the balance.
- */
-export function preEmphasisAdvice(spec: WelchSpectrum, cornerHz: number): PreEmphasisAdvice | null {
-  if (!(cornerHz > 0)) return null;
+/** Power-weighted envelope loss 10·log10(ΣP/ΣP·|H|²) at corner fc, dB, and the share of power above fc. */
+function envelopeLoss(spec: WelchSpectrum, cornerHz: number): { lossDb: number; aboveFraction: number } | null {
   let total = 0;
   let above = 0;
   let passed = 0;
@@ -160,13 +172,42 @@ export function preEmphasisAdvice(spec: WelchSpectrum, cornerHz: number): PreEmp
     passed += p / (1 + (f / cornerHz) ** 2);
   }
   if (!(total > 0)) return null;
-  const lossDb = powerToDb(total / passed);
+  return { lossDb: powerToDb(total / passed), aboveFraction: above / total };
+}
+
+/**
+ * Pre-emphasis advice from the clip's spectrum and the coil's modulation corner fc: the coil's
+ * envelope follows like a first-order low-pass |H(f)|² = 1/(1 + (f/fc)²) (a resonator driven at
+ * resonance, corner f0/(2Q)); the power-weighted loss is 10·log10(ΣP / ΣP·|H|²).
+ *
+ * Without a measured Q the corner is only known as a range (`corner` = { lowHz, highHz }: the
+ * computed Q is an upper bound, streamers load a running coil down further). The loss falls as the
+ * corner rises, so the advice is the one that holds across the whole range: the loss at the HIGH
+ * corner, restored by a first-order high shelf starting there (gain at most 12 dB; advised above
+ * 1 dB). A stronger boost, right for the low end, would over-drive the treble if the coil's real
+ * corner is higher. A single number is a range of one (measured Q).
+ */
+export function preEmphasisAdvice(spec: WelchSpectrum, corner: number | CornerRangeHz): PreEmphasisAdvice | null {
+  const range = typeof corner === 'number' ? { lowHz: corner, highHz: corner } : { lowHz: corner.lowHz, highHz: corner.highHz };
+  if (!(range.lowHz > 0) || !(range.highHz >= range.lowHz)) return null;
+  const hi = envelopeLoss(spec, range.highHz);
+  const lo = envelopeLoss(spec, range.lowHz);
+  if (!hi || !lo) return null;
+  const one = range.highHz === range.lowHz;
+  const advised = hi.lossDb > 1;
+  const basis = one
+    ? `one corner (measured Q): the coil's envelope response costs this clip ${hi.lossDb.toFixed(1)} dB`
+    : `the corner lies between ${range.lowHz.toFixed(0)} and ${range.highHz.toFixed(0)} Hz (Q not measured), costing this clip from ${hi.lossDb.toFixed(1)} to ${lo.lossDb.toFixed(1)} dB; ` +
+      `only the ${hi.lossDb.toFixed(1)} dB that holds across the range is ${advised ? 'restored' : 'considered'}, since a stronger boost over-drives the treble if the real corner is higher; a measured Q would sharpen this`;
   return {
-    energyAboveCornerFraction: above / total,
-    envelopeLossDb: lossDb,
-    advised: lossDb > 1,
-    cornerHz,
-    shelfGainDb: Math.min(12, Math.round(lossDb * 10) / 10),
+    energyAboveCornerFraction: hi.aboveFraction,
+    envelopeLossDb: hi.lossDb,
+    envelopeLossRangeDb: { atLowCornerDb: lo.lossDb, atHighCornerDb: hi.lossDb },
+    advised,
+    cornerHz: range.highHz,
+    cornerRangeHz: range,
+    shelfGainDb: Math.min(12, Math.round(hi.lossDb * 10) / 10),
+    basis,
   };
 }
 
@@ -213,7 +254,7 @@ function demandSeries(clip: PlanClip, coil: CoilAtResonance, driver: DriverProfi
  */
 export function planClipReport(
   clip: PlanClip,
-  coil: CoilAtResonance & { modulationCornerHz: number },
+  coil: CoilAtResonance & { modulationCornerHz: number; modulationCornerRangeHz?: CornerRangeHz },
   driver: DriverProfile,
   settings: PlanSettings,
   opts: { gainDb?: number; spectrum?: WelchSpectrum; initial?: ThermalState[]; traces?: boolean } = {},
@@ -261,6 +302,9 @@ export function planClipReport(
     };
   });
 
+  const cornerRange: CornerRangeHz = coil.modulationCornerRangeHz
+    ? { lowHz: coil.modulationCornerRangeHz.lowHz, highHz: coil.modulationCornerRangeHz.highHz }
+    : { lowHz: coil.modulationCornerHz, highHz: coil.modulationCornerHz };
   const b = advice.binding;
   const report: PlanReport = {
     clip: clip.name,
@@ -287,8 +331,9 @@ export function planClipReport(
     limits: evaluation.limits,
     budget,
     limiterCeilingDbfs: Number.isFinite(evaluatedGainDb) ? -evaluatedGainDb : 0,
-    preEmphasis: opts.spectrum ? preEmphasisAdvice(opts.spectrum, coil.modulationCornerHz) : null,
+    preEmphasis: opts.spectrum ? preEmphasisAdvice(opts.spectrum, cornerRange) : null,
     modulationCornerHz: coil.modulationCornerHz,
+    modulationCornerRangeHz: cornerRange,
     warnings: [...sim.warnings],
     searchEvaluations: advice.evaluations,
   };

@@ -31,7 +31,7 @@ export function formatCoilReport(r: CoilReport): string {
     row('DC resistance at 20 °C', formatEng(s.dcResistanceOhm, 'Ω')),
     row(`DC resistance at ${s.wireTempC} °C`, formatEng(s.dcResistanceHotOhm, 'Ω')),
     row('skin depth at resonance', formatEng(s.skinDepthM, 'm')),
-    row('AC resistance (skin effect only)', `${formatEng(s.acResistanceOhm, 'Ω')}   [×${num3(s.acToDcRatio)} DC]`),
+    row('AC resistance (skin and proximity)', `${formatEng(s.acResistanceOhm, 'Ω')}   [isolated wire ×${num3(s.acToDcRatio)} DC, Medhurst proximity ×${num3(s.proximityFactor)}]`),
     row("self-capacitance (Medhurst's table)", `${formatEng(s.selfCapacitanceF, 'F')}   [Radiotron fit ${formatEng(m.radiotronFitF, 'F')}, Knight air-core ${formatEng(m.knightAirCoreF, 'F')}; spread ${s.selfCapacitanceSpreadPercent.toFixed(0)} %]`),
     '',
     `Top load: ${r.topLoad.shape}`,
@@ -46,10 +46,15 @@ export function formatCoilReport(r: CoilReport): string {
     row(
       'quality factor Q',
       r.qualityFactorMeasured === null
-        ? `${num3(r.qualityFactor)}   (computed: an upper bound)`
+        ? `${num3(r.qualityFactor)}   (computed with proximity, Medhurst 1947: an upper bound; skin effect only ${num3(r.qualityFactorSkinOnly)})`
         : `${num3(r.qualityFactor)}   (measured; computed upper bound ${num3(r.qualityFactorComputed)})`,
     ),
-    row('modulation corner f0/(2Q)', formatEng(r.modulationCornerHz, 'Hz')),
+    row(
+      'modulation corner f0/(2Q)',
+      r.modulationCornerRangeHz.highHz > r.modulationCornerRangeHz.lowHz
+        ? `${formatEng(r.modulationCornerRangeHz.lowHz, 'Hz')} to ${formatEng(r.modulationCornerRangeHz.highHz, 'Hz')}   (Q ${num3(r.qualityFactor)} down to a loaded Q ${num3(r.qualityFactorLoaded)}; measure Q to narrow it)`
+        : formatEng(r.modulationCornerHz, 'Hz'),
+    ),
     row('ring-up time constant Q/(π f0)', formatEng(r.ringUpTauS, 's')),
     '',
     'Primary and coupling',

@@ -35,7 +35,7 @@ function limitText(l: { limit: string; role: string | null; value: number; allow
 /** The readable answer for one clip. */
 export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
   const out: string[] = [];
-  out.push(`clip ${r.clip} (${r.durationS.toFixed(1)} s) on coil ${coil.name} (${formatEng(coil.resonanceHz, 'Hz')}, Q ${coil.qualityFactor.toFixed(0)}, envelope corner ${formatEng(r.modulationCornerHz, 'Hz')}) with driver ${driver.name} (${r.scheme})`);
+  out.push(`clip ${r.clip} (${r.durationS.toFixed(1)} s) on coil ${coil.name} (${formatEng(coil.resonanceHz, 'Hz')}, Q ${coil.qualityFactor.toFixed(0)}, envelope corner ${r.modulationCornerRangeHz.highHz > r.modulationCornerRangeHz.lowHz ? `${formatEng(r.modulationCornerRangeHz.lowHz, 'Hz')} to ${formatEng(r.modulationCornerRangeHz.highHz, 'Hz')}` : formatEng(r.modulationCornerHz, 'Hz')}) with driver ${driver.name} (${r.scheme})`);
   out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${pct(r.settings.allowedShare)}, ambient ${r.settings.ambientC} °C`);
   for (const w of r.warnings) out.push(`WARNING: ${w}`);
   if (r.advisedGainDb === null) {
@@ -68,9 +68,9 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
   if (r.preEmphasis) {
     const p = r.preEmphasis;
     out.push(
-      p.advised
-        ? `pre-emphasis advised: ${pct(p.energyAboveCornerFraction)} of the energy lies above the ${formatEng(p.cornerHz, 'Hz')} envelope corner (${p.envelopeLossDb.toFixed(1)} dB lost); a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')}`
-        : `pre-emphasis not needed: the envelope corner costs ${p.envelopeLossDb.toFixed(1)} dB`,
+      (p.advised
+        ? `pre-emphasis advised: a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')}`
+        : `pre-emphasis not advised: the envelope corner costs at least ${p.envelopeLossDb.toFixed(1)} dB`) + ` (${p.basis})`,
     );
   }
   if (r.pulseRf) {

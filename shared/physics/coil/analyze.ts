@@ -7,6 +7,7 @@ import { parseCoilProfile, type CoilProfile } from '../../schemas/coil.ts';
 import { currentSheetInductanceH, turnSumInductanceH, wheelerInductanceH } from './inductance.ts';
 import { couplingCoefficient, windingMutualInductanceH } from './mutual.ts';
 import { nagaokaCoefficient } from './nagaoka.ts';
+import { medhurstProximityFactor } from './proximity.ts';
 import { modulationCornerHz, qualityFactor, resonanceHz, ringUpTauS } from './resonance.ts';
 import {
   knightAirCoreSelfCapacitanceF,
@@ -53,6 +54,15 @@ export interface CoilDriveContext {
   wireTempC?: number;
 }
 
+/**
+ * Q of a secondary loaded by its own streamers, the low end of the modulation-corner range when Q
+ * is not measured: an arc at the top is a resistive load of the order of 100 kΩ, and builders put a
+ * running coil's loaded Q at the order of 10 ([recalled], common practice; no published
+ * measurement was found to cite). An assumption, stated as such in the report.
+ */
+export const LOADED_Q = 10;
+const LOADED_Q_BASIS = 'the order of Q a coil running arcs is loaded to by its streamers (common practice [recalled])';
+
 /** Default operating wire temperature, °C (an assumption: a secondary running warm). */
 export const DEFAULT_WIRE_TEMP_C = 40;
 
@@ -81,9 +91,17 @@ export interface CoilReport {
     dcResistanceHotOhm: number;
     /** At resonanceHz and wireTempC. */
     skinDepthM: number;
-    /** Isolated round wire (Bessel solution) at resonanceHz and wireTempC; proximity effect neglected. */
+    /**
+     * At resonanceHz and wireTempC with the proximity effect of the winding: Medhurst's factor Φ
+     * times the isolated round wire's AC resistance (Bessel solution).
+     */
     acResistanceOhm: number;
+    /** Isolated round wire (skin effect only) at resonanceHz and wireTempC. */
+    acResistanceIsolatedOhm: number;
+    /** Isolated round wire's AC-to-DC ratio (skin effect only). */
     acToDcRatio: number;
+    /** Medhurst's proximity factor Φ = R_coil/R_straight (1947 table) at this l/D and d/p. */
+    proximityFactor: number;
     /** Medhurst's table. */
     selfCapacitanceF: number;
     selfCapacitanceModels: { medhurstTableF: number; radiotronFitF: number; knightAirCoreF: number };
@@ -105,10 +123,23 @@ export interface CoilReport {
   resonanceByModelHz: { medhurstTableHz: number; radiotronFitHz: number; knightAirCoreHz: number };
   /** Measured where given, else computed. */
   qualityFactor: number;
-  /** 2π f L / R_ac with the isolated-wire R_ac: an upper bound. */
+  /**
+   * 2π f L / R_ac with the winding's R_ac (skin and proximity effect, Medhurst 1947): still an upper
+   * bound, since the former's dielectric loss, radiation and the top load's losses are not in it.
+   */
   qualityFactorComputed: number;
+  /** 2π f L / R_ac with the isolated wire's R_ac (skin effect only): the loosest bound, for comparison. */
+  qualityFactorSkinOnly: number;
   qualityFactorMeasured: number | null;
+  /** The Q assumed for a coil running arcs, the low end of the range (min of LOADED_Q and the Q above). */
+  qualityFactorLoaded: number;
+  /** f0/(2·qualityFactor): the corner at the coil's own (measured, else computed) Q; the low end of the range. */
   modulationCornerHz: number;
+  /**
+   * The modulation corner as a range: lowHz = f0/(2Q) at the Q above, highHz = f0/(2·Q_loaded) with
+   * streamers loading the coil. One value (lowHz = highHz) when Q is measured.
+   */
+  modulationCornerRangeHz: { lowHz: number; highHz: number; basis: string };
   ringUpTauS: number;
   primary: {
     meanDiameterM: number;
@@ -210,10 +241,21 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   const rDcHot = copperDcResistanceOhm(wireLengthM, s.wireDiameterM, tempC);
   const delta = skinDepthM(copperResistivityOhmM(tempC), f0);
   const acRatio = roundWireAcResistanceRatio(s.wireDiameterM / 2, delta);
-  const rAc = rDcHot * acRatio;
+  const rAcIsolated = rDcHot * acRatio;
+  const phi = medhurstProximityFactor(l / D, l / N / s.wireDiameterM);
+  const rAc = rAcIsolated * phi;
   const qComputed = qualityFactor(f0, L2, rAc);
   const qMeasured = profile.measured.qualityFactor;
   const q = qMeasured ?? qComputed;
+  const qLoaded = Math.min(LOADED_Q, q);
+  const cornerRange =
+    qMeasured !== null
+      ? { lowHz: modulationCornerHz(f0, q), highHz: modulationCornerHz(f0, q), basis: 'measured Q: one corner f0/(2Q)' }
+      : {
+          lowHz: modulationCornerHz(f0, q),
+          highHz: modulationCornerHz(f0, qLoaded),
+          basis: `from f0/(2Q) at the computed Q ${q.toFixed(0)} (skin and proximity effect, Medhurst 1947: an upper bound) to f0/(2Q) at Q ${qLoaded.toFixed(0)}, ${LOADED_Q_BASIS}; a measured Q would narrow it to one value`,
+        };
 
   const pr = profile.primary;
   // Thin, widely spaced primary turns carry more inductance than the current sheet (Rosa's
@@ -253,7 +295,7 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   const notes: string[] = [
     `Self-capacitance is Medhurst's table (coils on solid polystyrene rods); the Radiotron fit and Knight's air-core model differ from it by up to ${spreadPercent.toFixed(0)} % for this coil, putting the computed resonance anywhere from ${kHz(Math.min(...fModels))} to ${kHz(Math.max(...fModels))} kHz: measure it and enter measured.resonanceHz.`,
     "Top-load capacitance is the isolated electrode's; mounted on the coil, both it and the coil's self-capacitance change, so their sum is an approximation.",
-    'AC resistance is that of an isolated round wire (skin effect only); the proximity of neighbouring turns raises it further, so the computed Q is an upper bound.',
+    `AC resistance includes the proximity of neighbouring turns by Medhurst's 1947 factor (×${phi.toFixed(2)} at l/D ${(l / D).toFixed(2)}, d/p ${((s.wireDiameterM * N) / l).toFixed(2)}, measured where the skin effect is fully developed); the former's dielectric loss and radiation are not in it, so the computed Q is still an upper bound: measure Q and enter measured.qualityFactor.`,
   ];
   if (!medhurstTableCovers(l / D)) notes.push(`l/D = ${(l / D).toFixed(3)} lies outside Medhurst's table (0.1 to 50); the self-capacitance is extrapolated with the Radiotron fit.`);
   if (pr.wireDiameterM === undefined) {
@@ -282,7 +324,9 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
       dcResistanceHotOhm: rDcHot,
       skinDepthM: delta,
       acResistanceOhm: rAc,
+      acResistanceIsolatedOhm: rAcIsolated,
       acToDcRatio: acRatio,
+      proximityFactor: phi,
       selfCapacitanceF: cSelf,
       selfCapacitanceModels: models,
       selfCapacitanceSpreadPercent: spreadPercent,
@@ -298,8 +342,11 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
     resonanceByModelHz: byModel,
     qualityFactor: q,
     qualityFactorComputed: qComputed,
+    qualityFactorSkinOnly: qualityFactor(f0, L2, rAcIsolated),
     qualityFactorMeasured: qMeasured,
+    qualityFactorLoaded: qLoaded,
     modulationCornerHz: modulationCornerHz(f0, q),
+    modulationCornerRangeHz: cornerRange,
     ringUpTauS: ringUpTauS(f0, q),
     primary: {
       meanDiameterM: pr.diameterM,

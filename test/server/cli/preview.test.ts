@@ -23,7 +23,7 @@ describe('coilcue preview', () => {
     expect(err).toBe('');
     expect(code).toBe(0);
     expect(out).toMatch(/rail swing\s+\d+\.\d … \d+\.\d V of 48 V/);
-    expect(out).toMatch(/envelope corner 4\d\d Hz \(first-order low-pass\)/);
+    expect(out).toMatch(/envelope corner 1\d\d\d Hz \(first-order low-pass\)/);
     expect(occurrences(out, CAUTION)).toBe(1);
     const arc = await decodeAudioBytes(new Uint8Array(readFileSync(join(dir, 'arc.wav'))));
     const src = await decodeAudioBytes(new Uint8Array(readFileSync(join(dir, 'tune.wav'))));

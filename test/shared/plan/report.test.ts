@@ -216,5 +216,43 @@ describe('preEmphasisAdvice', () => {
     expect(preEmphasisAdvice(spectrum([10000], [1]), 1000)!.shelfGainDb).toBe(12);
     expect(preEmphasisAdvice(spectrum([100], [1]), 0)).toBeNull();
     expect(preEmphasisAdvice(spectrum([100], [0]), 1000)).toBeNull();
+    expect(preEmphasisAdvice(spectrum([100], [1]), { lowHz: 2000, highHz: 1000 })).toBeNull();
+  });
+
+  it('over a corner range advises only the boost that holds across it: the loss at the high corner', () => {
+    // Equal power at 500 Hz and 2 kHz. At fc = 1 kHz the loss is 10·log10(2) = 3.01 dB (above); at
+    // fc = 2 kHz, |H|² = 1/(1 + 1/16) = 16/17 and ½: ΣP·|H|² = 1.441 of 2 → 10·log10(2/(16/17 + ½)) = 1.423 dB
+    // (hand values).
+    const a = preEmphasisAdvice(spectrum([500, 2000], [1, 1]), { lowHz: 1000, highHz: 2000 })!;
+    expect(a.envelopeLossRangeDb.atLowCornerDb).toBeCloseTo(10 * Math.log10(2), 12);
+    expect(a.envelopeLossRangeDb.atHighCornerDb).toBeCloseTo(10 * Math.log10(2 / (16 / 17 + 0.5)), 12);
+    expect(a.envelopeLossDb).toBeCloseTo(10 * Math.log10(2 / (16 / 17 + 0.5)), 12);
+    expect(a.advised).toBe(true);
+    expect(a.cornerHz).toBe(2000);
+    expect(a.cornerRangeHz).toEqual({ lowHz: 1000, highHz: 2000 });
+    expect(a.shelfGainDb).toBe(1.4);
+    expect(a.basis).toMatch(/holds across the range/);
+    expect(a.basis).toMatch(/measured Q would sharpen/);
+    // Wider: at fc = 4 kHz the loss is 10·log10(2/(1/1.015625 + 0.8)) = 0.49 dB < 1 dB → nothing advised,
+    // though the low end alone would have asked for +3 dB.
+    const b = preEmphasisAdvice(spectrum([500, 2000], [1, 1]), { lowHz: 1000, highHz: 4000 })!;
+    expect(b.envelopeLossDb).toBeCloseTo(10 * Math.log10(2 / (1 / 1.015625 + 0.8)), 12);
+    expect(b.advised).toBe(false);
+    // A range of one (measured Q) is the single-corner advice.
+    const c = preEmphasisAdvice(spectrum([500, 2000], [1, 1]), { lowHz: 1000, highHz: 1000 })!;
+    expect(c.envelopeLossDb).toBeCloseTo(10 * Math.log10(2), 12);
+    expect(c.basis).toMatch(/measured Q/);
+  });
+
+  it("takes the plan's advice from the coil's corner range when the coil gives one", () => {
+    const clip = planClip('t', tone(1000, A, 0.5));
+    const spec = spectrum([500, 2000], [1, 1]);
+    const coil = { ...COIL_WITH_CORNER, modulationCornerHz: 1000, modulationCornerRangeHz: { lowHz: 1000, highHz: 2000 } };
+    const r = planClipReport(clip, coil, WEAK, planSettings(WEAK), { spectrum: spec }).report;
+    expect(r.modulationCornerRangeHz).toEqual({ lowHz: 1000, highHz: 2000 });
+    expect(r.preEmphasis!.cornerHz).toBe(2000);
+    const single = planClipReport(clip, { ...COIL_WITH_CORNER, modulationCornerHz: 1000 }, WEAK, planSettings(WEAK), { spectrum: spec }).report;
+    expect(single.modulationCornerRangeHz).toEqual({ lowHz: 1000, highHz: 1000 });
+    expect(single.preEmphasis!.cornerHz).toBe(1000);
   });
 });

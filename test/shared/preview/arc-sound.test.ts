@@ -13,9 +13,10 @@ import { pulsesAtGain, zeroCrossingEvents } from '../../../shared/plan/pulse-tra
 import { arcSound, levelTriple, onePoleGain, onePoleLowpass } from '../../../shared/preview/arc-sound.ts';
 
 const FS = 44100;
-const desk = analyzeCoil(DEMO_COILS['desk-lantern']);
+// Q pinned at 377 (the skin-effect-only figure) so the corner stays ≈ 435 Hz, well below fs/10.
+const desk = analyzeCoil({ ...DEMO_COILS['desk-lantern'], measured: { resonanceHz: null, qualityFactor: 377 } });
 const coil = { resonanceHz: desk.resonanceHz, qualityFactor: desk.qualityFactor };
-const FC = desk.modulationCornerHz; // ≈ 434.7 Hz
+const FC = desk.modulationCornerHz; // ≈ 435.2 Hz
 
 const textbookDb = (f: number, fc: number) => -10 * Math.log10(1 + (f / fc) ** 2);
 

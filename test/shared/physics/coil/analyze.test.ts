@@ -152,6 +152,29 @@ describe('measured figures and drive context', () => {
     expect(sheet.notes.join(' ')).toMatch(/primary\.wireDiameterM/);
   });
 
+  it("computes Q with Medhurst's proximity factor and gives the modulation corner as a range", () => {
+    const r = analyzeCoil(desk);
+    const s = r.secondary;
+    // Desk: l/D = 0.3/0.07525 = 3.987, d/p = 0.25/0.3 = 0.833. Medhurst 1947 table: row l/D = 2 gives
+    // 3.36 (d/p 0.9) and 2.74 (0.8), row 4 gives 3.05 and 2.60; bilinear → Φ ≈ 2.751 (hand value).
+    const at = (a: number, b: number) => b + (a - b) * ((0.8333333333 - 0.8) / 0.1);
+    const row2 = at(3.36, 2.74);
+    const row4 = at(3.05, 2.6);
+    const phi = row2 + (row4 - row2) * ((0.3 / 0.07525 - 2) / 2);
+    expect(Math.abs(s.proximityFactor - phi)).toBeLessThan(1e-6);
+    expect(rel(s.acResistanceOhm, s.acResistanceIsolatedOhm * s.proximityFactor)).toBeLessThan(1e-14);
+    expect(rel(r.qualityFactorSkinOnly / r.qualityFactorComputed, s.proximityFactor)).toBeLessThan(1e-14);
+    // The corner range: f0/(2Q) at the computed Q up to f0/(2·10) at the loaded Q (LOADED_Q).
+    expect(r.qualityFactorLoaded).toBe(10);
+    expect(rel(r.modulationCornerRangeHz.lowHz, r.resonanceHz / (2 * r.qualityFactorComputed))).toBeLessThan(1e-14);
+    expect(rel(r.modulationCornerRangeHz.highHz, r.resonanceHz / 20)).toBeLessThan(1e-14);
+    expect(r.modulationCornerRangeHz.basis).toMatch(/measured Q would narrow it/);
+    // A measured Q collapses the range to one corner.
+    const m = analyzeCoil({ ...desk, measured: { resonanceHz: null, qualityFactor: 45 } });
+    expect(m.modulationCornerRangeHz.lowHz).toBe(m.modulationCornerRangeHz.highHz);
+    expect(rel(m.modulationCornerHz, m.resonanceHz / 90)).toBeLessThan(1e-14);
+  });
+
   it('without drive figures gives no bound and says so', () => {
     const r = analyzeCoil(desk);
     expect(r.keepOutM).toBeNull();
