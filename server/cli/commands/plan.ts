@@ -11,17 +11,15 @@ import { writeFileAtomic } from '../../audio/wav.ts';
 import { jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
 import { loadCoil, loadDriver } from '../../services/profiles.ts';
 import { readJsonFile } from '../../services/read-json.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { Command } from '../io.ts';
+import { type ParsedOptions, usageLine } from '../options.ts';
+import { PLAN_OPTIONS } from './tables.ts';
 import { formatEng } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export { jsonReplacer };
 
-const USAGE =
-  'coilcue plan --clip <audio> --coil <coil.json> --driver <driver.json> [--gain-db G] [--json] [--trace out.csv] ' +
-  '[--channel mix|left|right] [--margin-k K] [--allowed-share S] [--ambient-c C] [--pulse-source zero-crossing|pitch-locked]\n' +
-  '       coilcue plan --set <set.json> [--json] [--common-gain] [--ambient-c C] [--margin-k K] [--allowed-share S]';
+const USAGE = usageLine(PLAN_OPTIONS);
 
 const f1 = (x: number) => x.toFixed(1);
 const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
@@ -96,44 +94,19 @@ export function formatSet(s: SetResult): string {
   return out.join('\n') + '\n';
 }
 
-function settingsFrom(values: Record<string, string | boolean | undefined>, driver: DriverProfile): PlanSettings {
-  return planSettings(driver, {
-    marginK: numberFlag(values['margin-k'] as string | undefined, 'margin-k', { min: 0, max: 200 }),
-    allowedShare: numberFlag(values['allowed-share'] as string | undefined, 'allowed-share', { min: 0, max: 0.5 }),
-    ambientC: numberFlag(values['ambient-c'] as string | undefined, 'ambient-c', { min: -40, max: 100 }),
-  });
+type PlanValues = ParsedOptions<typeof PLAN_OPTIONS.options>['values'];
+
+function settingsFrom(values: PlanValues, driver: DriverProfile): PlanSettings {
+  return planSettings(driver, { marginK: values['margin-k'], allowedShare: values['allowed-share'], ambientC: values['ambient-c'] });
 }
 
-export const planCommand: Command = {
-  usage: USAGE,
-  async run(argv, io) {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      {
-        clip: { type: 'string' },
-        coil: { type: 'string' },
-        driver: { type: 'string' },
-        set: { type: 'string' },
-        'gain-db': { type: 'string' },
-        json: { type: 'boolean' },
-        trace: { type: 'string' },
-        channel: { type: 'string' },
-        'margin-k': { type: 'string' },
-        'allowed-share': { type: 'string' },
-        'ambient-c': { type: 'string' },
-        'pulse-source': { type: 'string' },
-        'common-gain': { type: 'boolean' },
-      },
-      USAGE,
-    );
-    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}". Usage: ${USAGE}`);
-    const channel = choiceFlag(values.channel, 'channel', ['mix', 'left', 'right'] as const) ?? 'mix';
-    const pulseSource = choiceFlag(values['pulse-source'], 'pulse-source', ['zero-crossing', 'pitch-locked'] as const) ?? 'zero-crossing';
+export const planCommand: Command<typeof PLAN_OPTIONS.options> = {
+  options: PLAN_OPTIONS,
+  async run({ values }, io) {
+    const channel = values.channel;
+    const pulseSource = values['pulse-source'];
 
     if (values.set !== undefined) {
-      if (values.clip || values.coil || values.driver || values['gain-db'] || values.trace) {
-        throw new InputError('bad-arguments', `--set takes its coil, driver, clips and gains from the set file; drop --clip/--coil/--driver/--gain-db/--trace. Usage: ${USAGE}`);
-      }
       const setPath = resolve(io.cwd, values.set);
       const set = parseSetFile(await readJsonFile(values.set, io.cwd, 'set file', 'see the README for the set file format'));
       const base = dirname(setPath);
@@ -151,10 +124,8 @@ export const planCommand: Command = {
       return 0;
     }
 
-    if (!values.clip || !values.coil || !values.driver) {
-      throw new InputError('bad-arguments', `give --clip, --coil and --driver (or --set). Usage: ${USAGE}`);
-    }
-    const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
+    if (!values.clip || !values.coil || !values.driver) throw new InputError('bad-arguments', `give --clip, --coil and --driver, or --set. Usage: ${USAGE}`); // checked by the table
+    const gainDb = values['gain-db'];
     const driver = await loadDriver(values.driver, io.cwd);
     const coil = await loadCoil(values.coil, io.cwd, driver);
     const settings = settingsFrom(values, driver);

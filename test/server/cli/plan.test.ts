@@ -142,11 +142,11 @@ describe('coilcue plan: bad input exits 2 with one line naming the problem', () 
   write('set-missing-clip.json', JSON.stringify({ coil: 'coil.json', driver: 'linear.json', items: [{ clip: 'nowhere.wav' }] }));
 
   it.each([
-    ['no driver', ['--clip', 'loud.wav', '--coil', 'coil.json'], /give --clip, --coil and --driver/],
-    ['a gain that is not a number', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', 'loud'], /--gain-db must be a number, got "loud"/],
+    ['no driver', ['--clip', 'loud.wav', '--coil', 'coil.json'], /missing --driver \(or give --set/],
+    ['a gain that is not a number', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', 'loud'], /--gain-db must be a number \(dB\), got "loud"/],
     ['a gain out of range', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', '50'], /--gain-db must be at most 40/],
     ['a bad driver field', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'bad-driver.json'], /devices\.0\.tjMaxC/],
-    ['a missing driver file', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'nope.json'], /cannot read driver profile "nope\.json"/],
+    ['a missing driver file', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'nope.json'], /cannot read --driver "nope\.json" \(no such file\)/],
     ['a bad set field', ['--set', 'bad-set.json'], /items\.0\.gapAfterS/],
     ['a set whose clip is missing', ['--set', 'set-missing-clip.json'], /nowhere\.wav/],
     ['--set with --clip', ['--set', 'bad-set.json', '--clip', 'loud.wav'], /--set takes its coil, driver, clips and gains from the set file/],
