@@ -88,8 +88,9 @@ export async function prepareJob(
   channel: ModulationChannel,
   onProgress?: (fraction: number, stage: string) => void,
 ): Promise<PreparedJob> {
-  const coilReport = await loadCoil(files.coil, cwd);
   const driver = await loadDriver(files.driver, cwd);
+  // With the driver, the coil report carries the voltage bound and keep-out the cautions name.
+  const coilReport = await loadCoil(files.coil, cwd, driver);
   return prepareLoadedJob(cwd, files.clip, coilReport, driver, channel, onProgress);
 }
 

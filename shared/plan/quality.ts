@@ -10,8 +10,10 @@
  * (shared/dsp/histogram.ts). The gain that keeps that share at S is
  * g = c·10^(D/20)/q, q the (1 − S) quantile of |x| (percentileMagnitude). The limiter's attack and
  * release spread each cut over neighbouring samples, so the rendered share is somewhat larger than
- * this estimate and the suggestion is an upper figure. The render measures the share itself
- * (the limiter's report), so its verdict is exact; only the suggested gain is estimated.
+ * this estimate. The render measures the share itself (the limiter's report), so its verdict is
+ * exact; the suggested gain is estimated, with the spread measured at the render's gain
+ * (measured share / estimated share, at least 1) taken to hold at the lower gain: it aims the
+ * estimate at heavyShare / spread.
  * Thresholds: our choice, stated here and in the output (common practice: a few dB of occasional
  * peak limiting is inaudible on most music; sustained deep limiting is not).
  */
@@ -54,8 +56,11 @@ export function limitingNote(hist: MagnitudeHistogram, gainDb: number, ceilingDb
   const heavy = deepShare > heavyShare;
   let gainDbWithoutHeavyLimiting: number | null = null;
   if (heavy && hist.total > 0) {
-    const q = percentileMagnitude(hist, 100 * (1 - heavyShare));
-    if (q > 0) gainDbWithoutHeavyLimiting = Math.floor(10 * Math.min(gainDb, ampToDb(deepLevel / q))) / 10;
+    // The limiter's spread: how many more samples it cut deeply than exceed the deep level
+    // (1 for the estimate itself). The suggestion aims the estimate at the share over that spread.
+    const spread = Math.max(1, deepShare / Math.max(estimated, 1 / hist.total));
+    const q = percentileMagnitude(hist, 100 * (1 - heavyShare / spread));
+    if (q > 0) gainDbWithoutHeavyLimiting = Math.floor(10 * Math.min(gainDb - 0.1, ampToDb(deepLevel / q))) / 10;
   }
   const pct = (x: number) => `${(x * 100).toFixed(1)} %`;
   const note = heavy
