@@ -2,19 +2,19 @@ import { dirname, resolve } from 'node:path';
 import { InputError } from '../../../shared/errors.ts';
 import type { CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
-import type { PlanReport } from '../../../shared/plan/report.ts';
 import { type SetResult, planSet } from '../../../shared/plan/set.ts';
 import { traceCsv } from '../../../shared/plan/trace.ts';
 import type { DriverProfile } from '../../../shared/schemas/driver.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
-import { jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
+import { type PlanDocument, jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
+import { limitText } from '../../../shared/plan/limit-labels.ts';
 import { loadCoil, loadDriver } from '../../services/profiles.ts';
 import { readJsonFile } from '../../services/read-json.ts';
 import type { Command } from '../io.ts';
 import { type ParsedOptions, usageLine } from '../options.ts';
 import { PLAN_OPTIONS } from './tables.ts';
-import { formatEng } from '../format.ts';
+import { cautionLines, formatEng } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export { jsonReplacer };
@@ -24,17 +24,13 @@ const USAGE = usageLine(PLAN_OPTIONS);
 const f1 = (x: number) => x.toFixed(1);
 const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
 
-function limitText(l: { limit: string; role: string | null; value: number; allowed: number; unit: string }): string {
-  const who = l.role ? ` (${l.role})` : '';
-  const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
-  return `${l.limit}${who}: ${v}`;
-}
+const share = (x: number) => `${x} (${(x * 100).toFixed(3)} %)`;
 
 /** The readable answer for one clip. */
-export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
+export function formatPlan(r: PlanDocument, coil: CoilReport, driver: DriverProfile): string {
   const out: string[] = [];
   out.push(`clip ${r.clip} (${r.durationS.toFixed(1)} s) on coil ${coil.name} (${formatEng(coil.resonanceHz, 'Hz')}, Q ${coil.qualityFactor.toFixed(0)}, envelope corner ${formatEng(r.modulationCornerHz, 'Hz')}) with driver ${driver.name} (${r.scheme})`);
-  out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${pct(r.settings.allowedShare)}, ambient ${r.settings.ambientC} °C`);
+  out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${share(r.settings.allowedShare)} of the time or of pulses, ambient ${r.settings.ambientC} °C`);
   for (const w of r.warnings) out.push(`WARNING: ${w}`);
   if (r.advisedGainDb === null) {
     out.push(`advised gain: none is safe${r.binding ? `; failing: ${limitText(r.binding)}` : ''}`);
@@ -48,8 +44,16 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
     out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
   }
   out.push(`  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (1 ms mean; limit ${r.supply.limitA} A), mean ${r.supply.meanCurrentA.toFixed(2)} A`);
-  out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
-  if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}`);
+  out.push(`  over-modulated time ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
+  if (r.pulses) {
+    out.push(`  pulses ${r.pulses.count}: cut to the longest on-time ${r.pulses.onTimeClamped}, clamped by the duty limit ${r.pulses.dutyClamped}, dropped for the off-time ${r.pulses.offTimeDropped}`);
+  }
+  if (r.dutyCycle) {
+    const d = r.dutyCycle;
+    out.push(
+      `  duty cycle over ${d.window}: mean ${pct(d.meanDuty)}, worst ${pct(d.worstDuty)}${d.worstAtS !== null ? ` at ${d.worstAtS.toFixed(2)} s` : ''}, driver maximum ${pct(d.maxDuty)}`,
+    );
+  }
   out.push('headroom of every limit at that gain:');
   for (const l of r.limits) out.push(`  ${l.ok ? 'ok  ' : 'FAIL'} ${limitText(l)}`);
   for (const b of r.budget) {
@@ -58,18 +62,20 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
         (b.crossing ? `the clip's demand exceeds the budget for bursts of ${formatEng(b.crossing.lengthS, 's')} (demand ${pct(b.crossing.demand)}, budget ${pct(b.crossing.budget)})` : 'the clip stays within budget at every burst length'),
     );
   }
-  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level where the rail reaches its ends or the on-time its maximum)`);
+  const ends = r.scheme === 'pulse' ? 'where the on-time reaches its maximum' : 'where the rail reaches its ends';
+  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level ${ends})`);
   if (r.preEmphasis) {
     const p = r.preEmphasis;
     out.push(
       p.advised
-        ? `pre-emphasis advised: ${pct(p.energyAboveCornerFraction)} of the energy lies above the ${formatEng(p.cornerHz, 'Hz')} envelope corner (${p.envelopeLossDb.toFixed(1)} dB lost); a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')}`
+        ? `pre-emphasis advised: ${pct(p.energyAboveCornerFraction)} of the energy lies above the ${formatEng(p.cornerHz, 'Hz')} envelope corner (${p.envelopeLossDb.toFixed(1)} dB lost); a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')} (render applies it by default)`
         : `pre-emphasis not needed: the envelope corner costs ${p.envelopeLossDb.toFixed(1)} dB`,
     );
   }
   if (r.pulseRf) {
     out.push(`RF cycles per pulse at ${formatEng(coil.resonanceHz, 'Hz')}: fewest ${r.pulseRf.rfCyclesMin.toFixed(1)}, mean ${r.pulseRf.rfCyclesMean.toFixed(1)}; ${r.pulseRf.shorterThanRingUp} pulses shorter than the ring-up time ${formatEng(coil.ringUpTauS, 's')}`);
   }
+  if (r.limiting.note) out.push(`Quality: ${r.limiting.note}`);
   if (coil.keepOutM !== null) {
     const v = coil.voltage;
     out.push(
@@ -77,6 +83,7 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
     );
   }
   out.push(r.gainConvention);
+  out.push(...cautionLines(r.cautions));
   out.push('Caution: high voltage and RF can burn, injure or kill; follow local codes and licensed practice.');
   return out.join('\n') + '\n';
 }

@@ -2,14 +2,13 @@ import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
-import type { PlanCautions } from '../../../shared/plan/cautions.ts';
 import { limitLabel, limitValueText } from '../../../shared/plan/limit-labels.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type RenderSummary, renderJob } from '../../services/render.ts';
 import { refuseOverwriteOfInput } from '../file-args.ts';
 import { RENDER_OPTIONS } from './tables.ts';
 import { EXIT_OK, EXIT_UNSAFE, type CliIo, type Command } from '../io.ts';
-import { alignRows } from '../format.ts';
+import { alignRows, cautionLines } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export type { RenderSummary };
@@ -20,11 +19,6 @@ const dB = (x: number | null, digits = 2): string => (x === null || !Number.isFi
 
 /** What 0 dBFS means in a render for this scheme. */
 export const fullScaleMeaning = (scheme: string): string => (scheme === 'pulse' ? '0 dBFS = the longest on-time' : '0 dBFS = the rail at its ends');
-
-/** The cautions of a plan or a render, as lines of text. */
-export function cautionLines(c: PlanCautions): string[] {
-  return ['Before you trust these figures', `  ${c.profile}`, '  Estimated, not measured:', ...c.estimated.map((e) => `  - ${e}`), `  ${c.keepOut}`];
-}
 
 /** The readable report of a render. `written`: whether the file is under its name (an unsafe render is not, unless kept). */
 export function formatRender(s: RenderSummary, written = true): string {
