@@ -118,3 +118,13 @@ export function startAnalysisWorker(): AnalysisWorker {
   early = null;
   return w?.available ? w : newWorker();
 }
+
+/**
+ * Ends the worker prestartAnalysisWorker() started when no analysis took it (the command failed or
+ * finished before analysing), so no thread outlives the command. Idempotent; resolves when it has exited.
+ */
+export async function releasePrestartedWorker(): Promise<void> {
+  const w = early;
+  early = null;
+  await w?.terminate();
+}

@@ -1,3 +1,5 @@
+import type { PlanCautions } from '../../shared/plan/cautions.ts';
+
 /** Text formatting shared by the commands' readable output. */
 
 const PREFIXES: ReadonlyArray<[number, string]> = [
@@ -28,3 +30,9 @@ export function alignRows(rows: readonly (readonly [string, string])[], indent =
   const w = Math.max(...rows.map(([k]) => k.length));
   return rows.map(([k, v]) => `${indent}${k.padEnd(w)}  ${v}`);
 }
+
+/** The cautions of a plan or a render, as lines of text. */
+export function cautionLines(c: PlanCautions): string[] {
+  return ['Before you trust these figures', `  ${c.profile}`, '  Estimated, not measured:', ...c.estimated.map((e) => `  - ${e}`), `  ${c.keepOut}`];
+}
+

@@ -12,6 +12,7 @@ import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
 import { type Advice, adviseGain } from '../../shared/plan/advise.ts';
 import { type Evaluation, type PlanClip, type PlanSettings, evaluateAtGain, planSettings } from '../../shared/plan/evaluate.ts';
 import { type PulseSource, toPlanClip } from '../../shared/plan/plan-clip.ts';
+import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { type PlanReport, planClipReport } from '../../shared/plan/report.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import type { DecodedClip } from '../audio/decode.ts';
@@ -31,8 +32,11 @@ export const keepOutFigures = (coil: CoilReport) => ({
   basis: coil.voltage.basis,
 });
 
-/** `coilcue plan --json`'s document and the API's plan result: the report and the keep-out figures. */
-export type PlanDocument = PlanReport & { keepOut: ReturnType<typeof keepOutFigures> };
+/**
+ * `coilcue plan --json`'s document and the API's plan result: the report, the keep-out figures, and
+ * the cautions (what the advice rests on; interlock and emergency stop beside the keep-out).
+ */
+export type PlanDocument = PlanReport & { keepOut: ReturnType<typeof keepOutFigures>; cautions: PlanCautions };
 
 /** JSON has no ±Infinity or NaN: write them as null. */
 export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v);
@@ -51,7 +55,7 @@ export function planClipDocument(
     spectrum: analysis.spectrum.welch,
     traces: opts.traces ?? false,
   });
-  return { document: { ...report, keepOut: keepOutFigures(coil) }, evaluation };
+  return { document: { ...report, keepOut: keepOutFigures(coil), cautions: planCautions(coil, driver) }, evaluation };
 }
 
 /** Decodes and analyses a clip file (absolute path) and turns it into the planner's input. */
@@ -92,8 +96,9 @@ export async function prepareJob(
   channel: ModulationChannel,
   onProgress?: (fraction: number, stage: string) => void,
 ): Promise<PreparedJob> {
-  const coilReport = await loadCoil(files.coil, cwd);
   const driver = await loadDriver(files.driver, cwd);
+  // With the driver, the coil report carries the voltage bound and keep-out the cautions name.
+  const coilReport = await loadCoil(files.coil, cwd, driver);
   return prepareLoadedJob(cwd, files.clip, coilReport, driver, channel, onProgress);
 }
 

@@ -7,7 +7,11 @@ import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { LimitCheck } from '../../shared/plan/evaluate.ts';
+import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
+import { limitLabel } from '../../shared/plan/limit-labels.ts';
 import { toPlanClip } from '../../shared/plan/plan-clip.ts';
+import { type LimitingNote, limitingNote } from '../../shared/plan/quality.ts';
+import { preEmphasisAdvice } from '../../shared/plan/report.ts';
 import { type ArcSound, type LevelTriple, arcSound } from '../../shared/preview/arc-sound.ts';
 import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
 import { ampToDb, finiteOrNull } from '../../shared/units.ts';
@@ -32,8 +36,13 @@ export interface RenderSummary {
   scheme: string;
   gainDb: number;
   gainFrom: 'advised' | 'given';
-  advice: { advisedGainDb: number | null; binding: Pick<LimitCheck, 'limit' | 'role' | 'value' | 'allowed' | 'unit'> | null } | null;
+  advice: { advisedGainDb: number | null; binding: (Pick<LimitCheck, 'limit' | 'role' | 'value' | 'allowed' | 'unit'> & { label: string }) | null } | null;
+  /** The shelf applied (null: none). */
   preEmphasis: PreEmphasis | null;
+  /** Where the pre-emphasis came from: the plan's advice ("auto", the default), a given number, or off (0, or auto with none advised). */
+  preEmphasisFrom: 'advised' | 'given' | 'off';
+  /** What was applied and why, in one sentence. */
+  preEmphasisNote: string;
   limiter: RenderedModulation['limiter'];
   levels: {
     beforeLimiter: { samplePeakDbfs: number | null; truePeakDbtp: number | null };
@@ -47,21 +56,36 @@ export interface RenderSummary {
     limits: ClosedLoopReport['limits'];
     failures: string[];
   };
+  /**
+   * The safety verdict: false when the re-plan of the render breaks a limit (exit code 3 on the
+   * command line, and the file is not kept unless asked).
+   */
+  safe: boolean;
+  /** One line naming the broken limit when not safe, else null. */
+  unsafeReason: string | null;
+  /** Quality note apart from safety: heavy peak limiting, measured by the limiter. */
+  limiting: LimitingNote | null;
+  /** What the advice rests on (estimated figures and how to measure them) and the keep-out with interlock and emergency stop. */
+  cautions: PlanCautions;
   caution: string;
 }
 
 function bindingOf(b: LimitCheck | null) {
-  return b ? { limit: b.limit, role: b.role, value: b.value, allowed: b.allowed, unit: b.unit } : null;
+  return b ? { limit: b.limit, label: limitLabel(b), role: b.role, value: b.value, allowed: b.allowed, unit: b.unit } : null;
 }
 
 function renderSummary(
   files: { clip: string; out: string },
   format: WavSampleFormat,
   r: RenderedModulation,
-  scheme: string,
+  job: PreparedJob,
   choice: GainChoice,
   loop: ClosedLoopReport,
+  emphasis: { from: RenderSummary['preEmphasisFrom']; note: string },
+  histogram: PreparedJob['plan']['histogram'],
 ): RenderSummary {
+  const scheme = job.driver.scheme;
+  const broken = loop.limits.find((l) => !l.holds);
   return {
     clip: files.clip,
     out: files.out,
@@ -74,6 +98,8 @@ function renderSummary(
     gainFrom: choice.from,
     advice: choice.advice ? { advisedGainDb: choice.advice.advisedGainDb, binding: bindingOf(choice.advice.binding) } : null,
     preEmphasis: r.preEmphasis,
+    preEmphasisFrom: emphasis.from,
+    preEmphasisNote: emphasis.note,
     limiter: r.limiter,
     levels: {
       beforeLimiter: { samplePeakDbfs: finiteOrNull(r.beforeLimiter.samplePeakDbfs), truePeakDbtp: finiteOrNull(r.beforeLimiter.truePeakDbtp) },
@@ -87,17 +113,32 @@ function renderSummary(
       limits: loop.limits,
       failures: loop.failures,
     },
+    safe: loop.ok,
+    unsafeReason: broken ? unsafeLine(broken) : null,
+    limiting: r.limiter ? limitingNote(histogram, choice.gainDb, r.limiter.ceilingDbfs, r.limiter.deepFraction) : null,
+    cautions: planCautions(job.coilReport, job.driver),
     caution: RENDER_CAUTION,
   };
 }
 
-/** What a render is asked for. A shelf gain of 0 (or none) means no pre-emphasis. */
+/** The one line the command line prints when a render is not safe. */
+function unsafeLine(l: ClosedLoopReport['limits'][number]): string {
+  const v = (x: number) => (l.unit === 'C' ? `${x.toFixed(1)} °C` : l.unit === 'A' ? `${x.toFixed(2)} A` : `${(x * 100).toFixed(3)} %`);
+  return `${limitLabel(l)} breaks on the render: ${v(l.rendered)} against ${v(l.allowed)} allowed${l.atS === null ? '' : ` at ${l.atS.toFixed(2)} s`}`;
+}
+
+/** What a render is asked for. */
 export interface RenderOptions {
   /** Names shown in the document: the clip as the person named it, and the output. */
   names: { clip: string; out: string };
   gainDb?: number;
   format: WavSampleFormat;
-  preEmphasisDb?: number;
+  /**
+   * High-shelf gain, dB: 'auto' (or absent) applies the plan's advised pre-emphasis when the plan
+   * advises one (the coil's envelope corner costs more than 1 dB of the clip's power), a number
+   * overrides it, 0 turns it off.
+   */
+  preEmphasisDb?: number | 'auto';
   /** The shelf's corner; default the coil's modulation corner. */
   preEmphasisHz?: number;
   ceilingDbfs: number;
@@ -113,12 +154,13 @@ export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ b
   const fs = job.clip.sampleRate;
   let preEmphasis: PreEmphasis | null = null;
   let plan = job.plan;
-  if (o.preEmphasisDb !== undefined && o.preEmphasisDb !== 0) {
-    const cornerHz = o.preEmphasisHz ?? job.coilReport.modulationCornerHz;
+  const emphasis = chooseEmphasis(job, o.preEmphasisDb ?? 'auto');
+  if (emphasis.shelfDb !== 0) {
+    const cornerHz = o.preEmphasisHz ?? emphasis.cornerHz;
     if (!(cornerHz < fs / 2)) {
       throw new InputError('bad-pre-emphasis', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower corner frequency`, 'preEmphasisHz');
     }
-    preEmphasis = { cornerHz, shelfGainDb: o.preEmphasisDb };
+    preEmphasis = { cornerHz, shelfGainDb: emphasis.shelfDb };
     // The advice must be for the signal that reaches the coil: plan the emphasised source.
     const emphasised = await renderGraph(job.source, fs, 0, preEmphasis);
     plan = toPlanClip(job.clipPath, analyzeClip({ sampleRate: fs, channels: [emphasised] }), emphasised, job.driver);
@@ -129,7 +171,30 @@ export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ b
   // Closed loop on what the file holds: decoded from the very bytes written (our own file: no size or length limit).
   const decoded = await decodeAudioBytes(bytes, { maxBytes: Math.max(DEFAULT_MAX_BYTES, bytes.length), maxDurationS: Math.max(DEFAULT_MAX_DURATION_S, (2 * rendered.samples.length) / fs) });
   const loop = closedLoopCheck({ sampleRate: decoded.sampleRate, channels: decoded.channels }, o.names.out, job.coil, job.driver, job.settings, choice.promised);
-  return { bytes, summary: renderSummary(o.names, o.format, rendered, job.driver.scheme, choice, loop) };
+  const note =
+    preEmphasis === null
+      ? emphasis.note
+      : `${emphasis.note}: a first-order high shelf of ${preEmphasis.shelfGainDb >= 0 ? '+' : ''}${preEmphasis.shelfGainDb.toFixed(1)} dB from ${preEmphasis.cornerHz.toFixed(0)} Hz`;
+  return { bytes, summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
+}
+
+/** The shelf gain a render applies: the plan's advice for 'auto', else the number given (0: off). */
+/**
+ * The shelf a render applies: the plan's advice for 'auto' (the one that holds across the
+ * modulation corner's range when Q is not measured: shared/plan/report.ts preEmphasisAdvice), else
+ * the number given (0: off) from the coil's modulation corner.
+ */
+function chooseEmphasis(job: PreparedJob, asked: number | 'auto'): { shelfDb: number; cornerHz: number; from: RenderSummary['preEmphasisFrom']; note: string } {
+  const cornerHz = job.coilReport.modulationCornerHz;
+  if (asked !== 'auto') {
+    return asked === 0 ? { shelfDb: 0, cornerHz, from: 'off', note: 'no pre-emphasis (turned off with 0 dB)' } : { shelfDb: asked, cornerHz, from: 'given', note: 'pre-emphasis as given' };
+  }
+  const advice = preEmphasisAdvice(job.analysis.spectrum.welch, job.coilReport.modulationCornerRangeHz);
+  if (advice === null || !advice.advised || advice.shelfGainDb === 0) {
+    const why = advice === null ? 'the clip has no spectrum to judge by' : `the coil's envelope corner costs the clip only ${advice.envelopeLossDb.toFixed(1)} dB across its range`;
+    return { shelfDb: 0, cornerHz, from: 'off', note: `no pre-emphasis: none advised (${why})` };
+  }
+  return { shelfDb: advice.shelfGainDb, cornerHz: advice.cornerHz, from: 'advised', note: `pre-emphasis as the plan advises (${advice.basis})` };
 }
 
 const levelsDb = (l: LevelTriple) => ({

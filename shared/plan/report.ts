@@ -17,6 +17,9 @@ import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './d
 import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
 import { pulsesAtGain } from './pulse-train.ts';
+import { type DutyCycleFigures, dutyCycleFigures } from './duty-cycle.ts';
+import { limitLabel } from './limit-labels.ts';
+import { type LimitingNote, limitingNote } from './quality.ts';
 
 export const GAIN_CONVENTION =
   'gain 0 dB: a full-scale sample (±1.0) swings a rail scheme’s rail over its whole range (0 to the supply, around a bias at half the supply) and takes a pulse scheme’s on-time to its maximum';
@@ -91,7 +94,7 @@ export interface PlanReport {
   gainConvention: string;
   settings: PlanSettings;
   advisedGainDb: number | null;
-  binding: { limit: LimitCheck['limit']; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit'] } | null;
+  binding: { limit: LimitCheck['limit']; label: string; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit'] } | null;
   unsafeOnSilence: boolean;
   evaluatedGainDb: number;
   devices: DeviceFigures[];
@@ -107,8 +110,12 @@ export interface PlanReport {
   pulses: Evaluation['pulses'];
   /** Pulse scheme: RF cycles per pulse at the resonant frequency and pulses shorter than the ring-up time. */
   pulseRf: DriverSimulation['pulse'] | null;
-  /** Every limit at the evaluated gain, with its headroom. */
-  limits: LimitCheck[];
+  /** Every limit at the evaluated gain, with its headroom and the name a person reads (shared/plan/limit-labels.ts). */
+  limits: (LimitCheck & { label: string })[];
+  /** Pulse scheme: the duty cycle run over the duty limit's window, mean and worst, against the profile's maximum duty. */
+  dutyCycle: DutyCycleFigures | null;
+  /** Quality note, apart from safety: how much the peak limiter (ceiling at the rail's ends, or the longest on-time) would cut at the evaluated gain. */
+  limiting: LimitingNote;
   budget: BudgetCurve[];
   /** Peak-limiter ceiling on the modulation source before the gain, dBFS: the level whose gained sample reaches full swing. */
   limiterCeilingDbfs: number;
@@ -313,7 +320,7 @@ export function planClipReport(
     gainConvention: GAIN_CONVENTION,
     settings,
     advisedGainDb: advice.advisedGainDb,
-    binding: b ? { limit: b.limit, role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit } : null,
+    binding: b ? { limit: b.limit, label: limitLabel(b), role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit } : null,
     unsafeOnSilence: advice.unsafeOnSilence,
     evaluatedGainDb,
     devices,
@@ -328,7 +335,12 @@ export function planClipReport(
     overModulationTimeS: evaluation.overModulationTimeS,
     pulses: evaluation.pulses,
     pulseRf: sim.pulse ?? null,
-    limits: evaluation.limits,
+    limits: evaluation.limits.map((l) => ({ ...l, label: limitLabel(l) })),
+    dutyCycle:
+      driver.scheme === 'pulse' && clip.pulseEvents && driver.pulse
+        ? dutyCycleFigures(pulsesAtGain(clip.pulseEvents, dbToAmp(demandGainDb), driver.pulse), clip.durationS, driver.pulse.maxDuty)
+        : null,
+    limiting: limitingNote(clip.histogram, Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity, 0),
     budget,
     limiterCeilingDbfs: Number.isFinite(evaluatedGainDb) ? -evaluatedGainDb : 0,
     preEmphasis: opts.spectrum ? preEmphasisAdvice(opts.spectrum, cornerRange) : null,

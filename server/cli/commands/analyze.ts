@@ -1,15 +1,11 @@
 import { resolve } from 'node:path';
 import type { AnalysisSummary } from '../../../shared/analysis/summary.ts';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
-import { InputError } from '../../../shared/errors.ts';
 import { analysisDocument, analyzeFile } from '../../services/analysis.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { Command } from '../io.ts';
+import { ANALYZE_OPTIONS } from './tables.ts';
 import { withProgress } from '../progress.ts';
 import { alignRows } from '../format.ts';
-
-const USAGE = 'coilcue analyze <file> [--json] [--channel mix|left|right] [--frame-ms N]';
-const CHANNELS = ['mix', 'left', 'right'] as const;
 
 const db = (x: number | null, digits = 1) => (x === null ? '-inf' : x.toFixed(digits));
 
@@ -41,17 +37,11 @@ export function formatAnalysis(file: string, s: AnalysisSummary): string {
   return alignRows(rows).join('\n') + '\n';
 }
 
-export const analyzeCommand: Command = {
-  usage: USAGE,
-  async run(argv, io) {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      { json: { type: 'boolean' }, channel: { type: 'string' }, 'frame-ms': { type: 'string' } },
-      USAGE,
-    );
-    if (positionals.length !== 1) throw new InputError('bad-arguments', `give exactly one audio file. Usage: ${USAGE}`);
-    const channel: ModulationChannel = choiceFlag(values.channel, 'channel', CHANNELS) ?? 'mix';
-    const frameMs = numberFlag(values['frame-ms'], 'frame-ms', { min: 0.1, max: 1000 }) ?? 1;
+export const analyzeCommand: Command<typeof ANALYZE_OPTIONS.options> = {
+  options: ANALYZE_OPTIONS,
+  async run({ values, positionals }, io) {
+    const channel: ModulationChannel = values.channel;
+    const frameMs = values['frame-ms'];
     const analysis = await withProgress(io, 'analysing', (onProgress) =>
       analyzeFile(resolve(io.cwd, positionals[0]), { channel, frameS: frameMs / 1000, onProgress }),
     );

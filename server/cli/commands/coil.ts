@@ -1,17 +1,17 @@
 import { InputError } from '../../../shared/errors.ts';
 import { DEMO_COIL_NAMES, DEMO_COILS } from '../../../shared/demo/coils.ts';
+import { COIL_OPTIONS } from './tables.ts';
 import { analyzeCoil, type CoilDriveContext, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
 import { msToS } from '../../../shared/units.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
-import { EXIT_OK, type CliIo, type Command } from '../io.ts';
+import { EXIT_OK, type Command } from '../io.ts';
+import { usageLine } from '../options.ts';
 import { readJsonFile } from '../../services/read-json.ts';
 import { formatEng } from '../format.ts';
 
 export { formatEng };
 
-const USAGE =
-  'coilcue coil <coil.json> | --demo <name> [--json] [--supply-v <V>] [--rail-current-a <A>] [--on-time-ms <ms>] [--input-power-w <W>] [--wire-temp-c <°C>]';
+const USAGE = usageLine(COIL_OPTIONS);
 
 const pct = (x: number | null): string => (x === null ? '—' : `${x >= 0 ? '+' : ''}${x.toFixed(1)} %`);
 const num3 = (x: number | null): string => (x === null ? '—' : Math.abs(x) >= 1000 ? Math.round(x).toString() : x.toPrecision(3));
@@ -80,40 +80,27 @@ export function formatCoilReport(r: CoilReport): string {
 }
 
 /** `coilcue coil`: analyses a coil profile and prints a table (or JSON with --json). */
-export const coilCommand: Command = {
-  usage: USAGE,
-  async run(argv: string[], io: CliIo): Promise<number> {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      {
-        json: { type: 'boolean' },
-        demo: { type: 'string' },
-        'supply-v': { type: 'string' },
-        'rail-current-a': { type: 'string' },
-        'on-time-ms': { type: 'string' },
-        'input-power-w': { type: 'string' },
-        'wire-temp-c': { type: 'string' },
-      },
-      USAGE,
-    );
-    const demo = choiceFlag(values.demo, 'demo', DEMO_COIL_NAMES);
+export const coilCommand: Command<typeof COIL_OPTIONS.options> = {
+  options: COIL_OPTIONS,
+  async run({ values, positionals }, io): Promise<number> {
+    const demo = values.demo;
     if (demo !== undefined && positionals.length > 0) throw new InputError('bad-arguments', `give a profile file or --demo, not both. Usage: ${USAGE}`);
     if (demo === undefined && positionals.length !== 1) {
       throw new InputError('bad-arguments', `give exactly one coil profile file (or --demo ${DEMO_COIL_NAMES.join('|')}). Usage: ${USAGE}`);
     }
     const drive: CoilDriveContext = {};
-    const supply = numberFlag(values['supply-v'], 'supply-v', { min: 0 });
-    const rail = numberFlag(values['rail-current-a'], 'rail-current-a', { min: 0 });
-    const onMs = numberFlag(values['on-time-ms'], 'on-time-ms', { min: 0 });
-    const power = numberFlag(values['input-power-w'], 'input-power-w', { min: 0 });
-    const temp = numberFlag(values['wire-temp-c'], 'wire-temp-c', { min: -50, max: 200 });
+    const supply = values['supply-v'];
+    const rail = values['rail-current-a'];
+    const onMs = values['on-time-ms'];
+    const power = values['input-power-w'];
+    const temp = values['wire-temp-c'];
     if (supply !== undefined) drive.supplyVoltageV = supply;
     if (rail !== undefined) drive.fullRailCurrentA = rail;
     if (onMs !== undefined) drive.pulseOnTimeS = msToS(onMs);
     if (power !== undefined) drive.inputPowerW = power;
     if (temp !== undefined) drive.wireTempC = temp;
 
-    const json = demo !== undefined ? DEMO_COILS[demo] : await readJsonFile(positionals[0], io.cwd, 'coil profile', `fix the file or start from a demo: coilcue coil --demo ${DEMO_COIL_NAMES[0]} --json`);
+    const json = demo !== undefined ? DEMO_COILS[demo as keyof typeof DEMO_COILS] : await readJsonFile(positionals[0], io.cwd, 'coil profile', `fix the file or start from a demo: coilcue coil --demo ${DEMO_COIL_NAMES[0]} --json`);
     const report = analyzeCoil(parseCoilProfile(json), drive);
     io.out(values.json ? `${JSON.stringify(report, null, 2)}\n` : formatCoilReport(report));
     return EXIT_OK;

@@ -2,16 +2,15 @@ import { mkdir, writeFile } from 'node:fs/promises';
 import { join, relative, resolve } from 'node:path';
 import { DEMO_CLIPS, synthDemoClip } from '../../../shared/demo/clips.ts';
 import { DEMO_COILS } from '../../../shared/demo/coils.ts';
-import { DEMO_DRIVERS } from '../../../shared/demo/drivers.ts';
 import { InputError } from '../../../shared/errors.ts';
+import { DEMO_DRIVERS } from '../../../shared/demo/drivers.ts';
 import { encodeWav } from '../../audio/wav.ts';
-import { parseCommandArgs } from '../args.ts';
-import type { Command } from '../io.ts';
+import { type Command, runWithArgs } from '../io.ts';
+import { DEMO_OPTIONS } from './tables.ts';
 import { analyzeCommand } from './analyze.ts';
 import { coilCommand } from './coil.ts';
 import { planCommand } from './plan.ts';
 
-const USAGE = 'coilcue demo [--out <folder>]  (default folder: coilcue-demo)';
 const DEMO_COIL = 'desk-lantern';
 /** Invented bench measurements of the demo coil: resonance a little below the computed one, loaded Q. */
 const DEMO_MEASURED = { resonanceHz: 318_000, qualityFactor: 45 };
@@ -21,11 +20,9 @@ const DRIVER_FILES = ['driver-linear.json', 'driver-buck.json', 'driver-pulse.js
  * Writes our invented demo scenario (synthesised clips, a coil, three drivers, a set) into a folder
  * and runs the analysis, the coil model and the planner on it, section by section.
  */
-export const demoCommand: Command = {
-  usage: USAGE,
-  async run(argv, io) {
-    const { values, positionals } = parseCommandArgs(argv, { out: { type: 'string' } }, USAGE);
-    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}". Usage: ${USAGE}`);
+export const demoCommand: Command<typeof DEMO_OPTIONS.options> = {
+  options: DEMO_OPTIONS,
+  async run({ values }, io) {
     const dir = resolve(io.cwd, values.out ?? 'coilcue-demo');
     try {
       await mkdir(dir, { recursive: true });
@@ -53,16 +50,16 @@ export const demoCommand: Command = {
     io.out(`demo scenario written to ${shown}/: ${DEMO_CLIPS.map((c) => `${c.name}.wav`).join(', ')}, coil.json, ${DRIVER_FILES.join(', ')}, set.json\n`);
     const clip = join(dir, `${DEMO_CLIPS[0].name}.wav`);
     section(`analysis of ${DEMO_CLIPS[0].name}.wav`);
-    await analyzeCommand.run([clip], io);
+    await runWithArgs(analyzeCommand, [clip], io);
     section('coil model');
     const d0 = DEMO_DRIVERS[0];
-    await coilCommand.run([join(dir, 'coil.json'), '--supply-v', String(d0.supplyVoltageV), '--rail-current-a', String(d0.fullRailCurrentA)], io);
+    await runWithArgs(coilCommand, [join(dir, 'coil.json'), '--supply-v', String(d0.supplyVoltageV), '--rail-current-a', String(d0.fullRailCurrentA)], io);
     for (const f of DRIVER_FILES) {
       section(`plan for ${DEMO_CLIPS[0].name}.wav with ${f}`);
-      await planCommand.run(['--clip', clip, '--coil', join(dir, 'coil.json'), '--driver', join(dir, f)], io);
+      await runWithArgs(planCommand, ['--clip', clip, '--coil', join(dir, 'coil.json'), '--driver', join(dir, f)], io);
     }
     section(`set plan (${shown}/set.json)`);
-    await planCommand.run(['--set', join(dir, 'set.json')], io);
+    await runWithArgs(planCommand, ['--set', join(dir, 'set.json')], io);
     io.out(
       '\nCaution: a resonant coil makes high voltage and RF that can burn, injure or kill, and ozone, fire risk and radio ' +
         'interference; keep the keep-out distance, follow local codes and licensed practice, and protect your hearing.\n',

@@ -2,41 +2,35 @@ import { dirname, resolve } from 'node:path';
 import { InputError } from '../../../shared/errors.ts';
 import type { CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
-import type { PlanReport } from '../../../shared/plan/report.ts';
 import { type SetResult, planSet } from '../../../shared/plan/set.ts';
 import { traceCsv } from '../../../shared/plan/trace.ts';
 import type { DriverProfile } from '../../../shared/schemas/driver.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
-import { jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
+import { type PlanDocument, jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
+import { limitText } from '../../../shared/plan/limit-labels.ts';
 import { loadCoil, loadDriver } from '../../services/profiles.ts';
 import { readJsonFile } from '../../services/read-json.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
 import type { Command } from '../io.ts';
-import { formatEng } from '../format.ts';
+import { type ParsedOptions, usageLine } from '../options.ts';
+import { PLAN_OPTIONS } from './tables.ts';
+import { cautionLines, formatEng } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export { jsonReplacer };
 
-const USAGE =
-  'coilcue plan --clip <audio> --coil <coil.json> --driver <driver.json> [--gain-db G] [--json] [--trace out.csv] ' +
-  '[--channel mix|left|right] [--margin-k K] [--allowed-share S] [--ambient-c C] [--pulse-source zero-crossing|pitch-locked]\n' +
-  '       coilcue plan --set <set.json> [--json] [--common-gain] [--ambient-c C] [--margin-k K] [--allowed-share S]';
+const USAGE = usageLine(PLAN_OPTIONS);
 
 const f1 = (x: number) => x.toFixed(1);
 const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
 
-function limitText(l: { limit: string; role: string | null; value: number; allowed: number; unit: string }): string {
-  const who = l.role ? ` (${l.role})` : '';
-  const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
-  return `${l.limit}${who}: ${v}`;
-}
+const share = (x: number) => `${x} (${(x * 100).toFixed(3)} %)`;
 
 /** The readable answer for one clip. */
-export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfile): string {
+export function formatPlan(r: PlanDocument, coil: CoilReport, driver: DriverProfile): string {
   const out: string[] = [];
   out.push(`clip ${r.clip} (${r.durationS.toFixed(1)} s) on coil ${coil.name} (${formatEng(coil.resonanceHz, 'Hz')}, Q ${coil.qualityFactor.toFixed(0)}, envelope corner ${r.modulationCornerRangeHz.highHz > r.modulationCornerRangeHz.lowHz ? `${formatEng(r.modulationCornerRangeHz.lowHz, 'Hz')} to ${formatEng(r.modulationCornerRangeHz.highHz, 'Hz')}` : formatEng(r.modulationCornerHz, 'Hz')}) with driver ${driver.name} (${r.scheme})`);
-  out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${pct(r.settings.allowedShare)}, ambient ${r.settings.ambientC} °C`);
+  out.push(`settings: margin ${r.settings.marginK} K below each Tj max, allowed share ${share(r.settings.allowedShare)} of the time or of pulses, ambient ${r.settings.ambientC} °C`);
   for (const w of r.warnings) out.push(`WARNING: ${w}`);
   if (r.advisedGainDb === null) {
     out.push(`advised gain: none is safe${r.binding ? `; failing: ${limitText(r.binding)}` : ''}`);
@@ -54,8 +48,16 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
       ? `  supply    current during a pulse ${r.supply.peakCurrentA.toFixed(2)} A (instantaneous; limit ${r.supply.limitA} A), mean over the clip ${r.supply.meanCurrentA.toFixed(2)} A`
       : `  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (highest ${formatEng(r.supply.peakWindowS ?? 0, 's')} mean; limit ${r.supply.limitA} A), mean over the clip ${r.supply.meanCurrentA.toFixed(2)} A`,
   );
-  out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
-  if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}`);
+  out.push(`  over-modulated time ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
+  if (r.pulses) {
+    out.push(`  pulses ${r.pulses.count}: cut to the longest on-time ${r.pulses.onTimeClamped}, clamped by the duty limit ${r.pulses.dutyClamped}, dropped for the off-time ${r.pulses.offTimeDropped}`);
+  }
+  if (r.dutyCycle) {
+    const d = r.dutyCycle;
+    out.push(
+      `  duty cycle over ${d.window}: mean ${pct(d.meanDuty)}, worst ${pct(d.worstDuty)}${d.worstAtS !== null ? ` at ${d.worstAtS.toFixed(2)} s` : ''}, driver maximum ${pct(d.maxDuty)}`,
+    );
+  }
   out.push('headroom of every limit at that gain:');
   for (const l of r.limits) out.push(`  ${l.ok ? 'ok  ' : 'FAIL'} ${limitText(l)}`);
   for (const b of r.budget) {
@@ -64,18 +66,20 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
         (b.crossing ? `the clip's demand exceeds the budget for bursts of ${formatEng(b.crossing.lengthS, 's')} (demand ${pct(b.crossing.demand)}, budget ${pct(b.crossing.budget)})` : 'the clip stays within budget at every burst length'),
     );
   }
-  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level where the rail reaches its ends or the on-time its maximum)`);
+  const ends = r.scheme === 'pulse' ? 'where the on-time reaches its maximum' : 'where the rail reaches its ends';
+  out.push(`peak limiter: ceiling ${r.limiterCeilingDbfs.toFixed(1)} dBFS on the modulation source before the gain (the level ${ends})`);
   if (r.preEmphasis) {
     const p = r.preEmphasis;
     out.push(
       (p.advised
-        ? `pre-emphasis advised: a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')}`
+        ? `pre-emphasis advised: a first-order high shelf of +${p.shelfGainDb.toFixed(1)} dB from ${formatEng(p.cornerHz, 'Hz')} (render applies it by default)`
         : `pre-emphasis not advised: the envelope corner costs at least ${p.envelopeLossDb.toFixed(1)} dB`) + ` (${p.basis})`,
     );
   }
   if (r.pulseRf) {
     out.push(`RF cycles per pulse at ${formatEng(coil.resonanceHz, 'Hz')}: fewest ${r.pulseRf.rfCyclesMin.toFixed(1)}, mean ${r.pulseRf.rfCyclesMean.toFixed(1)}; ${r.pulseRf.shorterThanRingUp} pulses shorter than the ring-up time ${formatEng(coil.ringUpTauS, 's')}`);
   }
+  if (r.limiting.note) out.push(`Quality: ${r.limiting.note}`);
   if (coil.keepOutM !== null) {
     const v = coil.voltage;
     out.push(
@@ -87,6 +91,7 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
     );
   }
   out.push(r.gainConvention);
+  out.push(...cautionLines(r.cautions));
   out.push('Caution: high voltage and RF can burn, injure or kill; follow local codes and licensed practice.');
   return out.join('\n') + '\n';
 }
@@ -104,44 +109,19 @@ export function formatSet(s: SetResult): string {
   return out.join('\n') + '\n';
 }
 
-function settingsFrom(values: Record<string, string | boolean | undefined>, driver: DriverProfile): PlanSettings {
-  return planSettings(driver, {
-    marginK: numberFlag(values['margin-k'] as string | undefined, 'margin-k', { min: 0, max: 200 }),
-    allowedShare: numberFlag(values['allowed-share'] as string | undefined, 'allowed-share', { min: 0, max: 0.5 }),
-    ambientC: numberFlag(values['ambient-c'] as string | undefined, 'ambient-c', { min: -40, max: 100 }),
-  });
+type PlanValues = ParsedOptions<typeof PLAN_OPTIONS.options>['values'];
+
+function settingsFrom(values: PlanValues, driver: DriverProfile): PlanSettings {
+  return planSettings(driver, { marginK: values['margin-k'], allowedShare: values['allowed-share'], ambientC: values['ambient-c'] });
 }
 
-export const planCommand: Command = {
-  usage: USAGE,
-  async run(argv, io) {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      {
-        clip: { type: 'string' },
-        coil: { type: 'string' },
-        driver: { type: 'string' },
-        set: { type: 'string' },
-        'gain-db': { type: 'string' },
-        json: { type: 'boolean' },
-        trace: { type: 'string' },
-        channel: { type: 'string' },
-        'margin-k': { type: 'string' },
-        'allowed-share': { type: 'string' },
-        'ambient-c': { type: 'string' },
-        'pulse-source': { type: 'string' },
-        'common-gain': { type: 'boolean' },
-      },
-      USAGE,
-    );
-    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}". Usage: ${USAGE}`);
-    const channel = choiceFlag(values.channel, 'channel', ['mix', 'left', 'right'] as const) ?? 'mix';
-    const pulseSource = choiceFlag(values['pulse-source'], 'pulse-source', ['zero-crossing', 'pitch-locked'] as const) ?? 'zero-crossing';
+export const planCommand: Command<typeof PLAN_OPTIONS.options> = {
+  options: PLAN_OPTIONS,
+  async run({ values }, io) {
+    const channel = values.channel;
+    const pulseSource = values['pulse-source'];
 
     if (values.set !== undefined) {
-      if (values.clip || values.coil || values.driver || values['gain-db'] || values.trace) {
-        throw new InputError('bad-arguments', `--set takes its coil, driver, clips and gains from the set file; drop --clip/--coil/--driver/--gain-db/--trace. Usage: ${USAGE}`);
-      }
       const setPath = resolve(io.cwd, values.set);
       const set = parseSetFile(await readJsonFile(values.set, io.cwd, 'set file', 'see the README for the set file format'));
       const base = dirname(setPath);
@@ -159,10 +139,8 @@ export const planCommand: Command = {
       return 0;
     }
 
-    if (!values.clip || !values.coil || !values.driver) {
-      throw new InputError('bad-arguments', `give --clip, --coil and --driver (or --set). Usage: ${USAGE}`);
-    }
-    const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
+    if (!values.clip || !values.coil || !values.driver) throw new InputError('bad-arguments', `give --clip, --coil and --driver, or --set. Usage: ${USAGE}`); // checked by the table
+    const gainDb = values['gain-db'];
     const driver = await loadDriver(values.driver, io.cwd);
     const coil = await loadCoil(values.coil, io.cwd, driver);
     const settings = settingsFrom(values, driver);

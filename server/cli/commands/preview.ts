@@ -1,22 +1,15 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
-import { InputError } from '../../../shared/errors.ts';
-import { DEFAULT_MAX_COLUMNS } from '../../../shared/preview/modulation.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type PreviewSummary, previewJob } from '../../services/render.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
-import { refuseOverwriteOfInput, requireFiles } from '../file-args.ts';
+import { refuseOverwriteOfInput } from '../file-args.ts';
+import { PREVIEW_OPTIONS } from './tables.ts';
 import { EXIT_OK, type CliIo, type Command } from '../io.ts';
 import { alignRows } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export type { PreviewSummary };
-
-const USAGE =
-  'coilcue preview --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--channel mix|left|right] [--format s16|s24|f32] [--columns N] [--json]';
-const CHANNELS = ['mix', 'left', 'right'] as const;
-const FORMATS = ['s16', 's24', 'f32'] as const;
 
 const num = (x: number | null, d: number): string => (x === null ? '—' : x.toFixed(d));
 const dB = (x: number | null): string => (x === null ? '-inf' : x.toFixed(2));
@@ -49,35 +42,16 @@ export function formatPreview(s: PreviewSummary): string {
 }
 
 /** `coilcue preview`: what the coil will make of a clip — the arc sound as a WAV, the modulation in figures. */
-export const previewCommand: Command = {
-  usage: USAGE,
-  async run(argv: string[], io: CliIo): Promise<number> {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      {
-        clip: { type: 'string' },
-        coil: { type: 'string' },
-        driver: { type: 'string' },
-        out: { type: 'string' },
-        'gain-db': { type: 'string' },
-        channel: { type: 'string' },
-        format: { type: 'string' },
-        columns: { type: 'string' },
-        json: { type: 'boolean' },
-      },
-      USAGE,
-    );
-    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}"; every input is a flag. Usage: ${USAGE}`);
-    const files = requireFiles(values, USAGE);
+export const previewCommand: Command<typeof PREVIEW_OPTIONS.options> = {
+  options: PREVIEW_OPTIONS,
+  async run({ values }, io: CliIo): Promise<number> {
+    const files = { clip: values.clip, coil: values.coil, driver: values.driver, out: values.out };
     refuseOverwriteOfInput(io.cwd, files.clip, files.out);
-    const format: WavSampleFormat = choiceFlag(values.format, 'format', FORMATS) ?? 's16';
-    const channel: ModulationChannel = choiceFlag(values.channel, 'channel', CHANNELS) ?? 'mix';
-    const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
-    const columns = numberFlag(values.columns, 'columns', { min: 1, max: 100000 }) ?? DEFAULT_MAX_COLUMNS;
-    if (!Number.isInteger(columns)) throw new InputError('bad-arguments', `--columns must be a whole number, got ${columns}`);
+    const format: WavSampleFormat = values.format;
+    const channel: ModulationChannel = values.channel;
 
     const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
-    const { bytes, summary: s } = previewJob(job, { names: files, gainDb, format, columns });
+    const { bytes, summary: s } = previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns });
     await writeWavAtomic(resolve(io.cwd, files.out), bytes);
     io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatPreview(s));
     return EXIT_OK;

@@ -2,36 +2,34 @@ import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { InputError } from '../../../shared/errors.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
-import { formatLimitValue, limitLabel } from '../../render/closed-loop.ts';
+import { limitLabel, limitValueText } from '../../../shared/plan/limit-labels.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type RenderSummary, renderJob } from '../../services/render.ts';
-import { choiceFlag, numberFlag, parseCommandArgs } from '../args.ts';
-import { refuseOverwriteOfInput, requireFiles } from '../file-args.ts';
-import { EXIT_OK, type CliIo, type Command } from '../io.ts';
-import { alignRows } from '../format.ts';
+import { refuseOverwriteOfInput } from '../file-args.ts';
+import { RENDER_OPTIONS } from './tables.ts';
+import { EXIT_OK, EXIT_UNSAFE, type CliIo, type Command } from '../io.ts';
+import { alignRows, cautionLines } from '../format.ts';
 import { withProgress } from '../progress.ts';
 
 export type { RenderSummary };
 
 // Registered together with `preview` from one import line in ./index.ts.
 
-const USAGE =
-  'coilcue render --clip <audio> --coil <coil.json> --driver <driver.json> --out <file.wav> [--gain-db G] [--format s16|s24|f32] [--channel mix|left|right] [--pre-emphasis-db G] [--pre-emphasis-hz F] [--ceiling-dbfs C] [--json]';
-const CHANNELS = ['mix', 'left', 'right'] as const;
-const FORMATS = ['s16', 's24', 'f32'] as const;
-
 const dB = (x: number | null, digits = 2): string => (x === null || !Number.isFinite(x) ? '-inf' : `${x >= 0 ? '+' : ''}${x.toFixed(digits)}`);
 
-/** The readable report of a render. */
-export function formatRender(s: RenderSummary): string {
+/** What 0 dBFS means in a render for this scheme. */
+export const fullScaleMeaning = (scheme: string): string => (scheme === 'pulse' ? '0 dBFS = the longest on-time' : '0 dBFS = the rail at its ends');
+
+/** The readable report of a render. `written`: whether the file is under its name (an unsafe render is not, unless kept). */
+export function formatRender(s: RenderSummary, written = true): string {
   const rows: [string, string][] = [
-    ['output', `${s.out} (${s.format}, ${s.sampleRate} Hz, mono, ${s.durationS.toFixed(2)} s)`],
+    ['output', `${s.out} (${s.format}, ${s.sampleRate} Hz, mono, ${s.durationS.toFixed(2)} s)${written ? '' : ' — NOT WRITTEN'}`],
     ['modulation source', `${s.channel} of ${s.clip}`],
     [
       'gain',
-      `${dB(s.gainDb, 1)} dB (${s.gainFrom}${s.advice?.binding ? `; above it ${limitLabel(s.advice.binding)} binds` : ''})`,
+      `${dB(s.gainDb, 1)} dB (${s.gainFrom}${s.advice?.binding ? `; above it ${s.advice.binding.label} binds` : ''})`,
     ],
-    ['pre-emphasis', s.preEmphasis ? `${dB(s.preEmphasis.shelfGainDb, 1)} dB high shelf, half of it at ${s.preEmphasis.cornerHz.toFixed(0)} Hz` : 'none'],
+    ['pre-emphasis', s.preEmphasisNote],
   ];
   const l = s.limiter;
   if (l) {
@@ -45,11 +43,11 @@ export function formatRender(s: RenderSummary): string {
     ]);
   }
   rows.push(['before the limiter', `${dB(s.levels.beforeLimiter.samplePeakDbfs)} dBFS sample peak, ${dB(s.levels.beforeLimiter.truePeakDbtp)} dBTP true peak`]);
-  rows.push(['render', `${dB(s.levels.render.samplePeakDbfs)} dBFS sample peak, ${dB(s.levels.render.truePeakDbtp)} dBTP true peak (0 dBFS = the rail at its ends)`]);
+  rows.push(['render', `${dB(s.levels.render.samplePeakDbfs)} dBFS sample peak, ${dB(s.levels.render.truePeakDbtp)} dBTP true peak (${fullScaleMeaning(s.scheme)})`]);
   const lines = [`Render for the coil (${s.scheme} scheme)`, ...alignRows(rows, '  '), '', 'Closed loop', `  ${s.closedLoop.explanation}`];
   const table: string[][] = [['limit', 'planned', 'render', 'allowed', '']];
   for (const x of s.closedLoop.limits) {
-    table.push([limitLabel(x), formatLimitValue(x.planned, x.unit), formatLimitValue(x.rendered, x.unit), formatLimitValue(x.allowed, x.unit), x.holds ? 'holds' : 'DOES NOT HOLD']);
+    table.push([limitLabel(x), limitValueText(x.planned, x.unit, x.limit), limitValueText(x.rendered, x.unit, x.limit), limitValueText(x.allowed, x.unit), x.holds ? 'holds' : 'DOES NOT HOLD']);
   }
   const widths = table[0].map((_, c) => Math.max(...table.map((r) => r[c].length)));
   for (const r of table) lines.push(`  ${r.map((cell, c) => (c === 0 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join('  ')}`.trimEnd());
@@ -57,50 +55,41 @@ export function formatRender(s: RenderSummary): string {
   if (s.closedLoop.ok) {
     lines.push(s.gainFrom === 'advised' ? 'Every limit the advice promised holds on the render.' : 'Every limit holds on the render.');
   } else {
-    lines.push('NOT SAFE AS RENDERED: the file was written, but do not play it on the coil as it is:');
+    lines.push(
+      written
+        ? 'NOT SAFE AS RENDERED: the file was kept (--keep-unsafe), but do not play it on the coil as it is:'
+        : `NOT SAFE AS RENDERED: nothing was written to ${s.out}; do not play this render on the coil:`,
+    );
     for (const f of s.closedLoop.failures) lines.push(`  ! ${f}`);
     lines.push(s.gainFrom === 'given' ? '  Lower --gain-db (or leave it out for the advised gain) and render again.' : '  Lower the gain below the advised value (--gain-db) and render again.');
   }
-  lines.push(s.caution, '');
+  if (s.limiting?.note) lines.push(`Quality: ${s.limiting.note}`);
+  lines.push('', ...cautionLines(s.cautions), s.caution, '');
   return lines.join('\n');
 }
 
 /** `coilcue render`: the coil-ready WAV of a clip, limited to the ceiling and checked in a closed loop. */
-export const renderCommand: Command = {
-  usage: USAGE,
-  async run(argv: string[], io: CliIo): Promise<number> {
-    const { values, positionals } = parseCommandArgs(
-      argv,
-      {
-        clip: { type: 'string' },
-        coil: { type: 'string' },
-        driver: { type: 'string' },
-        out: { type: 'string' },
-        'gain-db': { type: 'string' },
-        format: { type: 'string' },
-        channel: { type: 'string' },
-        'pre-emphasis-db': { type: 'string' },
-        'pre-emphasis-hz': { type: 'string' },
-        'ceiling-dbfs': { type: 'string' },
-        json: { type: 'boolean' },
-      },
-      USAGE,
-    );
-    if (positionals.length) throw new InputError('bad-arguments', `unexpected argument "${positionals[0]}"; every input is a flag. Usage: ${USAGE}`);
-    const files = requireFiles(values, USAGE);
+export const renderCommand: Command<typeof RENDER_OPTIONS.options> = {
+  options: RENDER_OPTIONS,
+  async run({ values }, io: CliIo): Promise<number> {
+    const files = { clip: values.clip, coil: values.coil, driver: values.driver, out: values.out };
     refuseOverwriteOfInput(io.cwd, files.clip, files.out);
-    const format: WavSampleFormat = choiceFlag(values.format, 'format', FORMATS) ?? 's16';
-    const channel: ModulationChannel = choiceFlag(values.channel, 'channel', CHANNELS) ?? 'mix';
-    const gainDb = numberFlag(values['gain-db'], 'gain-db', { min: -60, max: 40 });
-    const shelfDb = numberFlag(values['pre-emphasis-db'], 'pre-emphasis-db', { min: -24, max: 24 });
-    const shelfHz = numberFlag(values['pre-emphasis-hz'], 'pre-emphasis-hz', { min: 1 });
-    if (shelfHz !== undefined && shelfDb === undefined) throw new InputError('bad-arguments', '--pre-emphasis-hz needs --pre-emphasis-db (the shelf gain)');
-    const ceilingDbfs = numberFlag(values['ceiling-dbfs'], 'ceiling-dbfs', { min: -40, max: 0 }) ?? 0;
+    const format: WavSampleFormat = values.format;
+    const channel: ModulationChannel = values.channel;
+    const shelfDb = values['pre-emphasis-db'];
+    const shelfHz = values['pre-emphasis-hz'];
+    if (shelfHz !== undefined && shelfDb === 0) throw new InputError('bad-arguments', '--pre-emphasis-hz sets the corner of a shelf that --pre-emphasis-db 0 turns off: drop one of them', 'pre-emphasis-hz');
 
     const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
-    const { bytes, summary: s } = await renderJob(job, { names: files, gainDb, format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs });
-    await writeWavAtomic(resolve(io.cwd, files.out), bytes);
-    io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatRender(s));
+    const { bytes, summary: s } = await renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] });
+    // An unsafe render is not handed over under the output name unless asked (exit code 3 either way).
+    const write = s.safe || values['keep-unsafe'];
+    if (write) await writeWavAtomic(resolve(io.cwd, files.out), bytes);
+    io.out(values.json ? `${JSON.stringify({ ...s, fileWritten: write }, null, 2)}\n` : formatRender(s, write));
+    if (!s.safe) {
+      io.err(`coilcue render: unsafe: ${s.unsafeReason}; ${write ? `${files.out} was kept (--keep-unsafe): do not play it on the coil` : `nothing was written to ${files.out}`}\n`);
+      return EXIT_UNSAFE;
+    }
     return EXIT_OK;
   },
 };

@@ -5,6 +5,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { encodeWav } from '../../../server/audio/wav.ts';
 import type { CliIo } from '../../../server/cli/io.ts';
 import { main } from '../../../server/cli/main.ts';
+import type { PlanDocument } from '../../../server/services/plan.ts';
 import { DEMO_COILS } from '../../../shared/demo/coils.ts';
 import { DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
 
@@ -60,13 +61,36 @@ describe('coilcue plan (one clip)', () => {
   });
 
   it('prints the readable answer, and evaluates at --gain-db when given', async () => {
-    // A negative value needs the = form: node's parseArgs reads "-3" after a flag as another flag.
-    const { code, out } = await run('--clip', loud, '--coil', coil, '--driver', pulse, '--gain-db=-3');
+    const { code, out } = await run('--clip', loud, '--coil', coil, '--driver', pulse, '--gain-db', '-3');
     expect(code).toBe(0);
     expect(out).toMatch(/advised gain: \d+\.\d dB/);
     expect(out).toMatch(/evaluated at -3\.0 dB:/);
-    expect(out).toMatch(/pulses \d+: on-time clamped/);
+    expect(out).toMatch(/pulses \d+: cut to the longest on-time \d+, clamped by the duty limit \d+, dropped for the off-time \d+/);
     expect(out).toMatch(/headroom of every limit at that gain:/);
+  });
+
+  it('names each limit for what it counts, the same in text and JSON, beside the duty cycle the driver bounds', async () => {
+    const text = (await run('--clip', loud, '--coil', coil, '--driver', pulse)).out;
+    const r = JSON.parse((await run('--clip', loud, '--coil', coil, '--driver', pulse, '--json')).out) as PlanDocument;
+    const duty = r.limits.find((l) => l.limit === 'duty')!;
+    expect(duty.label).toBe('pulses clamped by the duty limit');
+    expect(r.limits.find((l) => l.limit === 'on-time')!.label).toBe('pulses cut to the longest on-time');
+    expect(r.limits.find((l) => l.limit === 'over-modulation')!.label).toBe('over-modulated time');
+    for (const l of r.limits) expect(text).toContain(`${l.label}: `);
+    expect(text).toMatch(/pulses clamped by the duty limit: \d+\.\d{3} % of pulses, allowed 0\.100 %/);
+    expect(text).toMatch(/allowed share 0\.001 \(0\.100 %\) of the time or of pulses/);
+    // The duty cycle over the duty limit's window (one pulse period), against the profile's maximum.
+    const d = r.dutyCycle!;
+    expect(d.maxDuty).toBe(DEMO_DRIVER_PULSE.pulse!.maxDuty);
+    expect(d.meanDuty).toBeGreaterThan(0);
+    expect(d.meanDuty).toBeLessThanOrEqual(d.worstDuty);
+    expect(d.worstDuty).toBeLessThanOrEqual(d.maxDuty * (1 + 1e-9)); // the duty limit is applied per period
+    expect(text).toMatch(/duty cycle over one pulse period .*: mean \d+\.\d{3} %, worst \d+\.\d{3} %.*driver maximum \d+\.\d{3} %/);
+    // Cautions where the risk is: the profile, the estimated figures and how to measure them, interlock and emergency stop.
+    expect(r.cautions.profile).toMatch(/only if the coil and driver profiles are right/);
+    expect(r.cautions.estimated.some((e) => /heat sinks/.test(e))).toBe(true);
+    expect(r.cautions.keepOut).toMatch(/interlock.*emergency stop/);
+    expect(text).toContain(r.cautions.keepOut);
   });
 
   it('--trace writes the per-frame CSV', async () => {
@@ -142,11 +166,11 @@ describe('coilcue plan: bad input exits 2 with one line naming the problem', () 
   write('set-missing-clip.json', JSON.stringify({ coil: 'coil.json', driver: 'linear.json', items: [{ clip: 'nowhere.wav' }] }));
 
   it.each([
-    ['no driver', ['--clip', 'loud.wav', '--coil', 'coil.json'], /give --clip, --coil and --driver/],
-    ['a gain that is not a number', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', 'loud'], /--gain-db must be a number, got "loud"/],
+    ['no driver', ['--clip', 'loud.wav', '--coil', 'coil.json'], /missing --driver \(or give --set/],
+    ['a gain that is not a number', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', 'loud'], /--gain-db must be a number \(dB\), got "loud"/],
     ['a gain out of range', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--gain-db', '50'], /--gain-db must be at most 40/],
     ['a bad driver field', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'bad-driver.json'], /devices\.0\.tjMaxC/],
-    ['a missing driver file', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'nope.json'], /cannot read driver profile "nope\.json"/],
+    ['a missing driver file', ['--clip', 'loud.wav', '--coil', 'coil.json', '--driver', 'nope.json'], /cannot read --driver "nope\.json" \(no such file\)/],
     ['a bad set field', ['--set', 'bad-set.json'], /items\.0\.gapAfterS/],
     ['a set whose clip is missing', ['--set', 'set-missing-clip.json'], /nowhere\.wav/],
     ['--set with --clip', ['--set', 'bad-set.json', '--clip', 'loud.wav'], /--set takes its coil, driver, clips and gains from the set file/],

@@ -8,6 +8,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { decodeAudioBytes } from '../../../server/audio/decode.ts';
 import type { RenderSummary } from '../../../server/cli/commands/render.ts';
+import { DEMO_DRIVER_LINEAR } from '../../../shared/demo/drivers.ts';
 import { measureTruePeak, samplePeakLinear } from '../../../shared/dsp/true-peak.ts';
 import { makeWorkspace, occurrences } from '../render/cli-workspace.ts';
 
@@ -58,15 +59,53 @@ describe('coilcue render', () => {
     expect(new DataView(bytes.buffer).getUint16(34, true)).toBe(24); // bits per sample in the fmt chunk
   });
 
-  it('a given gain too high for the supply: the file is written and the report says plainly which limit fails', async () => {
-    const { code, out } = await run(...base, '--driver', 'weak.json', '--out', 'hot.wav', '--gain-db', '6');
-    expect(code).toBe(0);
+  it('a render forced above the advised gain exits 3 with one line naming the broken limit, and leaves no file', async () => {
+    // The demo linear driver with a 2.2 A supply: the supply current binds at the advised gain (its idle draw is 1.5 A).
+    writeFileSync(join(dir, 'tight.json'), JSON.stringify({ ...DEMO_DRIVER_LINEAR, supplyCurrentLimitA: 2.2 }));
+    const advised = JSON.parse((await run(...base, '--driver', 'tight.json', '--out', 'ok.wav', '--json')).out) as RenderSummary;
+    expect(advised.safe).toBe(true);
+    expect(advised.advice!.binding!.label).toBe('supply current');
+    const forced = (advised.gainDb + 3).toFixed(1);
+    const { code, out, err } = await run(...base, '--driver', 'tight.json', '--out', 'hot.wav', '--gain-db', forced);
+    expect(code).toBe(3);
+    expect(err.trim().split('\n')).toHaveLength(1);
+    expect(err.trim()).toMatch(/^coilcue render: unsafe: supply current breaks on the render: \d+\.\d\d A against 2\.20 A allowed.*nothing was written to hot\.wav$/);
     expect(out).toMatch(/\(given\)/);
-    expect(out).toMatch(/supply current\s+\d+\.\d\d A\s+\d+\.\d\d A\s+1\.50 A\s+DOES NOT HOLD/);
-    expect(out).toContain('NOT SAFE AS RENDERED');
-    expect(out).toMatch(/! supply current does NOT hold on the render/);
+    expect(out).toMatch(/supply current\s+\d+\.\d\d A\s+\d+\.\d\d A\s+2\.20 A\s+DOES NOT HOLD/);
+    expect(out).toContain('NOT SAFE AS RENDERED: nothing was written to hot.wav');
     expect(out).toContain('Lower --gain-db');
-    expect(existsSync(join(dir, 'hot.wav'))).toBe(true);
+    expect(existsSync(join(dir, 'hot.wav'))).toBe(false);
+    expect(readdirSync(dir).filter((f) => f.endsWith('.tmp'))).toEqual([]);
+  });
+
+  it('--keep-unsafe keeps the unsafe file, and still exits 3', async () => {
+    writeFileSync(join(dir, 'tight.json'), JSON.stringify({ ...DEMO_DRIVER_LINEAR, supplyCurrentLimitA: 2.2 }));
+    const { code, out, err } = await run(...base, '--driver', 'tight.json', '--out', 'kept.wav', '--gain-db', '8', '--keep-unsafe', '--json');
+    expect(code).toBe(3);
+    expect(err).toMatch(/kept\.wav was kept \(--keep-unsafe\): do not play it on the coil/);
+    const s = JSON.parse(out) as RenderSummary & { fileWritten: boolean };
+    expect(s.safe).toBe(false);
+    expect(s.fileWritten).toBe(true);
+    expect(s.unsafeReason).toMatch(/^supply current breaks on the render/);
+    expect(existsSync(join(dir, 'kept.wav'))).toBe(true);
+  });
+
+  it("applies the plan's advised pre-emphasis by default and says so; a number overrides it, 0 turns it off", async () => {
+    const auto = JSON.parse((await run(...base, '--driver', 'linear.json', '--out', 'auto.wav', '--json')).out) as RenderSummary;
+    const planned = JSON.parse((await run('plan', '--clip', 'tune.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--json')).out) as { preEmphasis: { advised: boolean; shelfGainDb: number } };
+    if (planned.preEmphasis.advised) {
+      expect(auto.preEmphasisFrom).toBe('advised');
+      expect(auto.preEmphasis!.shelfGainDb).toBeCloseTo(planned.preEmphasis.shelfGainDb, 6);
+      expect(auto.preEmphasisNote).toMatch(/^pre-emphasis as the plan advises .*: a first-order high shelf of \+\d+\.\d dB from \d+ Hz$/);
+    } else {
+      expect(auto.preEmphasisFrom).toBe('off');
+      expect(auto.preEmphasisNote).toMatch(/^no pre-emphasis: none advised/);
+    }
+    const off = JSON.parse((await run(...base, '--driver', 'linear.json', '--out', 'off.wav', '--pre-emphasis-db', '0', '--json')).out) as RenderSummary;
+    expect(off.preEmphasis).toBeNull();
+    expect(off.preEmphasisFrom).toBe('off');
+    const given = await run(...base, '--driver', 'linear.json', '--out', 'given.wav', '--pre-emphasis-db', '3');
+    expect(given.out).toMatch(/pre-emphasis\s+pre-emphasis as given: a first-order high shelf of \+3\.0 dB/);
   });
 
   it('takes negative numbers after their flags (--gain-db -4 --ceiling-dbfs -1) and holds the lower ceiling', async () => {
@@ -96,10 +135,10 @@ describe('bad input: exit 2, one line on stderr, no file under the output name',
     [['--driver', 'linear.json', '--out', 'x.wav', '--format', 'mp3'], /--format must be one of s16, s24, f32/],
     [['--driver', 'linear.json', '--out', 'x.wav', '--gain-db', 'loud'], /--gain-db must be a number/],
     [['--driver', 'linear.json', '--out', 'x.wav', '--gain-db', '90'], /--gain-db must be at most 40/],
-    [['--driver', 'linear.json', '--out', 'x.wav', '--pre-emphasis-hz', '300'], /--pre-emphasis-hz needs --pre-emphasis-db/],
+    [['--driver', 'linear.json', '--out', 'x.wav', '--pre-emphasis-db', '0', '--pre-emphasis-hz', '300'], /--pre-emphasis-db 0 turns off/],
     [['--driver', 'linear.json', '--out', 'x.wav', '--pre-emphasis-db', '6', '--pre-emphasis-hz', '30000'], /not below half the sample rate/],
     [['--driver', 'linear.json', '--out', 'x.wav', '--ceiling-dbfs', '1'], /--ceiling-dbfs must be at most 0/],
-    [['--driver', 'nothere.json', '--out', 'x.wav'], /cannot read driver profile "nothere.json" \(no such file\)/],
+    [['--driver', 'nothere.json', '--out', 'x.wav'], /cannot read --driver "nothere.json" \(no such file\)/],
     [['--driver', 'notjson.json', '--out', 'x.wav'], /driver profile "notjson.json" is not valid JSON/],
     [['--driver', 'broken.json', '--out', 'x.wav'], /supplyVoltageV/],
     [['--driver', 'linear.json', '--out', 'no/such/dir/x.wav'], /cannot write .*its folder does not exist/],
