@@ -56,6 +56,20 @@ export interface DecodeOptions {
    * (copyToChannel), so a clip for the renderer must not ask for it. Default false.
    */
   sharedChannels?: boolean;
+  /**
+   * Called once, before the first `onFrames`, with the clip's length in frames, its channel count
+   * and sample rate (for a caller that sizes its own arrays).
+   */
+  onStart?(frames: number, channelCount: number, sampleRate: number): void;
+  /**
+   * Decode a WAV file (decodeAudioFile) without keeping its samples: each block is converted into
+   * arrays of one block's length, reused from block to block, and handed to `onFrames` as frames
+   * 0…to−from−1 of those arrays (the blocks arrive in order; the caller counts where it is); the
+   * clip returned has channels of length 0. For callers that reduce the samples as they arrive
+   * (planning keeps only the modulation source and its reductions): the decoded clip is never in
+   * memory. Other formats are decoded whole as usual. Default false.
+   */
+  discardSamples?: boolean;
 }
 
 /** Default longest clip, s (20 min). */
@@ -83,6 +97,8 @@ interface Resolved {
   timeoutS: number;
   deadlineMs: number;
   onFrames(channels: Float32Array[], from: number, to: number): void;
+  onStart(frames: number, channelCount: number, sampleRate: number): void;
+  discardSamples: boolean;
   progress(f: number): void;
   /** `count` channels of `frames` samples, in shared memory if the caller asked for it. */
   allocate(count: number, frames: number): Float32Array[];
@@ -104,6 +120,8 @@ function resolveOptions(opts: DecodeOptions | undefined): Resolved {
     timeoutS,
     deadlineMs: Date.now() + timeoutS * 1000,
     onFrames: o.onFrames ? (c, from, to) => o.onFrames!(c, from, to) : () => undefined,
+    onStart: o.onStart ? (n, c, fs) => o.onStart!(n, c, fs) : () => undefined,
+    discardSamples: o.discardSamples === true,
     allocate: (count, frames) =>
       Array.from({ length: count }, () => (o.sharedChannels ? new Float32Array(new SharedArrayBuffer(4 * frames)) : new Float32Array(frames))),
     progress(f) {
@@ -255,8 +273,10 @@ async function decodeWavFile(fh: FileHandle, head: Uint8Array, size: number, r: 
   checkWavHeader(h, fileBytes, r);
   r.progress(0.01);
   const n = h.framesPresent;
-  const channels = r.allocate(h.channelCount, n);
   const blockFrames = Math.max(1, Math.min(WAV_CHUNK_FRAMES, Math.floor(WAV_BLOCK_BYTES / h.blockAlign)));
+  const keep = !r.discardSamples;
+  const channels = keep ? r.allocate(h.channelCount, n) : Array.from({ length: h.channelCount }, () => new Float32Array(Math.min(n, blockFrames)));
+  r.onStart(n, h.channelCount, h.sampleRate);
   const bufBytes = Math.min(n, blockFrames) * h.blockAlign;
   const bufs = [new Uint8Array(bufBytes), new Uint8Array(bufBytes)];
   const readBlock = (from: number, buf: Uint8Array) =>
@@ -270,9 +290,10 @@ async function decodeWavFile(fh: FileHandle, head: Uint8Array, size: number, r: 
     }
     if (to < n) pending = readBlock(to, bufs[(k + 1) & 1]); // read ahead while converting this block
     try {
-      const bad = convertWavFrames(block, h, channels, from, to);
-      if (bad >= 0) throw nonFinite(bad, h.sampleRate);
-      r.onFrames(channels, from, to);
+      const at = keep ? from : 0; // where the block lands in `channels`
+      const bad = convertWavFrames(block, h, channels, at, at + to - from);
+      if (bad >= 0) throw nonFinite(bad - at + from, h.sampleRate);
+      r.onFrames(channels, at, at + to - from);
       r.progress(0.01 + 0.98 * (to / n));
       if (to < n && Date.now() > r.deadlineMs) throw timedOut(r.timeoutS);
     } catch (e) {
@@ -280,7 +301,7 @@ async function decodeWavFile(fh: FileHandle, head: Uint8Array, size: number, r: 
       throw e;
     }
   }
-  return { sampleRate: h.sampleRate, channels, format: 'wav', sourceBytes: fileBytes, durationS: n / h.sampleRate };
+  return { sampleRate: h.sampleRate, channels: keep ? channels : channels.map(() => new Float32Array(0)), format: 'wav', sourceBytes: fileBytes, durationS: n / h.sampleRate };
 }
 
 /** The header checks of a WAV, before any sample is read: duration, decoded size, truncation, emptiness. */
@@ -330,6 +351,7 @@ async function decodeWav(bytes: Uint8Array, r: Resolved, p0: number): Promise<De
   const h = parseWavHeader(bytes);
   checkWavHeader(h, bytes.length, r);
   const channels = r.allocate(h.channelCount, h.framesPresent);
+  r.onStart(h.framesPresent, h.channelCount, h.sampleRate);
   for (let from = 0; from < h.framesPresent; from += WAV_CHUNK_FRAMES) {
     const to = Math.min(h.framesPresent, from + WAV_CHUNK_FRAMES);
     const bad = readWavFrames(bytes, h, channels, from, to);
@@ -428,6 +450,7 @@ async function decodeCompressed(
   const durationS = frames / decoded.sampleRate;
   if (durationS > r.maxDurationS) throw tooLong(durationS, r.maxDurationS);
   checkDecodedSize(frames, channels.length, r);
+  r.onStart(frames, channels.length, decoded.sampleRate);
   r.onFrames(channels, 0, frames);
   return { sampleRate: decoded.sampleRate, channels, format, sourceBytes, durationS };
 }

@@ -3,10 +3,12 @@
  * advised limits, as a WAV file.
  *
  * Chain: modulation source (mix / left / right → mono, shared/audio/clip.ts) → optional
- * pre-emphasis (BiquadFilterNode "highshelf" at a corner with a gain in dB, S = 1: the Web Audio
- * spec's shelf, which is R. Bristow-Johnson's *Audio EQ Cookbook* high shelf) → gain (GainNode,
- * g = 10^(gainDb/20)) rendered through the `web-audio-api` package's OfflineAudioContext; then the
- * look-ahead peak limiter of shared/dsp/limiter.ts at the ceiling; then encodeWav.
+ * pre-emphasis (the Web Audio "highshelf" at a corner with a gain in dB, S = 1, which is
+ * R. Bristow-Johnson's *Audio EQ Cookbook* high shelf) → gain (g = 10^(gainDb/20)) → the look-ahead
+ * peak limiter of shared/dsp/limiter.ts at the ceiling → the WAV encoder. All of it runs block by
+ * block (block-render.ts), so memory does not grow with the clip's length beyond the source itself;
+ * the shelf and the gain compute what the `web-audio-api` package's OfflineAudioContext graph
+ * (renderGraph, kept as the reference) computes.
  *
  * Why the limiter is not the graph's DynamicsCompressorNode: in this package it is a dB-domain
  * envelope follower with a one-pole attack (attack ≥ 0 s, no look-ahead) and a ratio of at most
@@ -27,19 +29,13 @@
  */
 import { OfflineAudioContext } from 'web-audio-api';
 import { type AudioClip, type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
-import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S, lookAheadLimit } from '../../shared/dsp/limiter.ts';
-import { TRUE_PEAK_PHASES, channelTruePeakLinear, samplePeakLinear } from '../../shared/dsp/true-peak.ts';
+import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S } from '../../shared/dsp/limiter.ts';
 import { InputError } from '../../shared/errors.ts';
 import { ampToDb, dbToAmp } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
+import { ANNEX2_ABS_TAP_SUM, type BlockRenderFigures, type PreEmphasis, WavBlockEncoder, quantisationMargin, renderBlocks } from './block-render.ts';
 
-/** A high-shelf pre-emphasis: half its gain (in dB) at `cornerHz`, the full gain towards Nyquist. */
-export interface PreEmphasis {
-  /** Shelf midpoint frequency, Hz (0 < f < fs/2). */
-  cornerHz: number;
-  /** Shelf gain at high frequencies, dB (−24…+24). */
-  shelfGainDb: number;
-}
+export { type PreEmphasis, quantisationMargin } from './block-render.ts';
 
 /** Options of {@link renderModulation}; levels in dB/dBFS, times in seconds. */
 export interface RenderOptions {
@@ -95,16 +91,8 @@ export interface RenderedModulation {
   truePeakDbtp: number;
 }
 
-/** Largest change a sample undergoes in encodeWav, linear full scale: < 1.5 LSB (s16, dithered), ≤ 0.5 LSB (s24), 0 (f32). */
-export function quantisationMargin(format: WavSampleFormat): number {
-  return format === 's16' ? 1.5 / 32768 : format === 's24' ? 0.5 / 8388608 : 0;
-}
-
-/** max over branches of Σ|h_p[k]| of the BS.1770-4 Annex 2 filter (≈ 2.02): the most a bounded error can grow in the oversampled signal. */
-const ANNEX2_ABS_TAP_SUM = Math.max(...TRUE_PEAK_PHASES.map((h) => h.reduce((s, v) => s + Math.abs(v), 0)));
-
 /** Checks render options; InputError naming the option (they come from flags). */
-function checkOptions(clip: AudioClip, o: RenderOptions): void {
+function checkOptions(clip: Pick<AudioClip, 'sampleRate'>, o: RenderOptions): void {
   if (!(Number.isFinite(o.gainDb) && o.gainDb >= -60 && o.gainDb <= 40)) {
     throw new InputError('bad-arguments', `the gain must be −60…+40 dB, got ${o.gainDb}`);
   }
@@ -161,57 +149,125 @@ export async function renderGraph(mono: Float32Array, sampleRate: number, gainDb
   return rendered.getChannelData(0);
 }
 
+/** A render's levels and limiter report, without its samples (they went to the file). */
+export type RenderedModulationFigures = Omit<RenderedModulation, 'samples'> & { sampleCount: number };
+
 /**
- * Renders the coil-ready modulation signal of `clip` (module comment): mono, gained, optionally
- * pre-emphasised, limited so that every sample (and the true peak, by default) of the encoded file
- * stays at or below the ceiling. Throws InputError for options out of range (naming them) and a
- * mono clip asked for its right channel.
+ * Renders the coil-ready modulation signal of `source` (the modulation source `channel` of a clip:
+ * mono, linear full scale) block by block (module comment) and encodes it as a mono WAV in
+ * `format` (16-bit with TPDF dither seeded by `seed`, 24-bit, or 32-bit float): `onChunk` receives
+ * the file's bytes in order, `onDecoded` the samples as a reader decodes them from the file (for the
+ * closed loop), `onRestart` is called when a pass that was written is replaced by the next (the
+ * limiter's true-peak passes): whatever was received so far must be dropped. Every sample of the
+ * file (and its true peak, by default) stays at or below the ceiling. InputError for options out of
+ * range (naming them).
+ *
+ * @example const parts: Uint8Array[] = []; renderModulationWav(src, 44100, 'mix', { gainDb: -3, format: 's16' }, { onChunk: (b) => parts.push(b.slice()), onRestart: () => (parts.length = 0) })
+ */
+export function renderModulationWav(
+  source: Float32Array,
+  sampleRate: number,
+  channel: ModulationChannel,
+  opts: RenderOptions & { format: WavSampleFormat; seed?: number; blockSize?: number },
+  sink: { onChunk(bytes: Uint8Array): void; onDecoded?(samples: Float32Array): void; onRestart?(): void },
+): RenderedModulationFigures {
+  checkOptions({ sampleRate }, opts);
+  const enc = new WavBlockEncoder(sampleRate, source.length, opts.format, opts.seed ?? 1, sink.onChunk, sink.onDecoded);
+  const r = renderSamples(source, sampleRate, opts, opts.format, {
+    write: (b) => enc.write(b),
+    restart: () => {
+      enc.restart();
+      sink.onRestart?.();
+    },
+  });
+  enc.finish();
+  return figuresOf(r, sampleRate, channel, opts);
+}
+
+/** The limiter's settings from the options, and renderBlocks over `source` into `sink`. */
+function renderSamples(
+  source: Float32Array,
+  sampleRate: number,
+  opts: RenderOptions & { blockSize?: number },
+  format: WavSampleFormat,
+  sink: { write(b: Float32Array): void; restart(): void },
+): BlockRenderFigures {
+  const ceilingDbfs = opts.ceilingDbfs ?? 0;
+  const truePeak = opts.truePeak ?? true;
+  const q = quantisationMargin(opts.format ?? format);
+  const working = dbToAmp(ceilingDbfs) - q * (truePeak ? ANNEX2_ABS_TAP_SUM : 1);
+  return renderBlocks(
+    source,
+    sampleRate,
+    {
+      gainDb: opts.gainDb,
+      preEmphasis: opts.preEmphasis ?? null,
+      limiter: opts.noLimiter ? null : { ceiling: dbToAmp(ceilingDbfs), workingCeiling: working, truePeak, lookAheadS: opts.lookAheadS, releaseS: opts.releaseS },
+      blockSize: opts.blockSize,
+    },
+    sink,
+  );
+}
+
+/** The report of a block render in the units a person reads. */
+function figuresOf(r: BlockRenderFigures, sampleRate: number, channel: ModulationChannel, opts: RenderOptions): RenderedModulationFigures {
+  const beforeLimiter = { samplePeakDbfs: ampToDb(r.beforeLimiter.samplePeak), truePeakDbtp: ampToDb(r.beforeLimiter.truePeak) };
+  const n = r.sampleCount;
+  const l = r.limiter;
+  return {
+    sampleRate,
+    sampleCount: n,
+    channel,
+    gainDb: opts.gainDb,
+    preEmphasis: opts.preEmphasis ?? null,
+    limiter:
+      l === null
+        ? null
+        : {
+            ceilingDbfs: opts.ceilingDbfs ?? 0,
+            workingCeilingDbfs: ampToDb(l.workingCeiling),
+            truePeak: opts.truePeak ?? true,
+            lookAheadS: opts.lookAheadS ?? DEFAULT_LOOKAHEAD_S,
+            releaseS: opts.releaseS ?? DEFAULT_RELEASE_S,
+            limitedSamples: l.limitedSamples,
+            limitedFraction: n ? l.limitedSamples / n : 0,
+            deepFraction: n ? l.deepSamples / n : 0,
+            maxReductionDb: l.minGain > 0 ? -20 * Math.log10(l.minGain) : Infinity,
+            passes: l.passes,
+          },
+    beforeLimiter,
+    samplePeakDbfs: ampToDb(r.samplePeak),
+    truePeakDbtp: ampToDb(r.truePeak),
+  };
+}
+
+/**
+ * Renders the coil-ready modulation signal of `clip` (module comment) into memory: mono, gained,
+ * optionally pre-emphasised, limited so that every sample (and the true peak, by default) of the
+ * encoded file stays at or below the ceiling. The same samples as {@link renderModulationWav}
+ * writes before quantisation; for tests and small clips (it holds the whole render). Throws
+ * InputError for options out of range (naming them) and a mono clip asked for its right channel.
  *
  * @example const r = await renderModulation(clip, { gainDb: -3.4 }); r.truePeakDbtp // ≤ 0
  */
-export async function renderModulation(clip: AudioClip, opts: RenderOptions): Promise<RenderedModulation> {
+export async function renderModulation(clip: AudioClip, opts: RenderOptions & { blockSize?: number }): Promise<RenderedModulation> {
   checkOptions(clip, opts);
   const channel = opts.channel ?? 'mix';
   if (channel === 'right' && clip.channels.length < 2) {
     throw new InputError('bad-arguments', 'the right channel was asked of a mono clip; use the mix or the left channel');
   }
-  const fs = clip.sampleRate;
-  const preEmphasis = opts.preEmphasis ?? null;
-  const graph = await renderGraph(modulationSource(clip, channel), fs, opts.gainDb, preEmphasis);
-  const beforeLimiter = { samplePeakDbfs: ampToDb(samplePeakLinear(graph)), truePeakDbtp: ampToDb(channelTruePeakLinear(graph)) };
-  if (opts.noLimiter) {
-    return { sampleRate: fs, samples: graph, channel, gainDb: opts.gainDb, preEmphasis, limiter: null, beforeLimiter, ...beforeLimiter };
-  }
-  const ceilingDbfs = opts.ceilingDbfs ?? 0;
-  const truePeak = opts.truePeak ?? true;
-  const q = quantisationMargin(opts.format ?? 's16');
-  const working = dbToAmp(ceilingDbfs) - q * (truePeak ? ANNEX2_ABS_TAP_SUM : 1);
-  const lookAheadS = opts.lookAheadS ?? DEFAULT_LOOKAHEAD_S;
-  const releaseS = opts.releaseS ?? DEFAULT_RELEASE_S;
-  const r = lookAheadLimit(graph, fs, { ceiling: working, truePeak, lookAheadS, releaseS }, graph);
-  const tp = truePeak ? r.truePeak : channelTruePeakLinear(r.output);
-  return {
-    sampleRate: fs,
-    samples: r.output,
-    channel,
-    gainDb: opts.gainDb,
-    preEmphasis,
-    limiter: {
-      ceilingDbfs,
-      workingCeilingDbfs: ampToDb(working),
-      truePeak,
-      lookAheadS,
-      releaseS,
-      limitedSamples: r.limitedSamples,
-      limitedFraction: r.output.length ? r.limitedSamples / r.output.length : 0,
-      deepFraction: r.output.length ? r.deepSamples / r.output.length : 0,
-      maxReductionDb: r.maxReductionDb,
-      passes: r.passes,
+  const source = modulationSource(clip, channel);
+  const samples = new Float32Array(source.length);
+  let at = 0;
+  const r = renderSamples(source, clip.sampleRate, opts, opts.format ?? 's16', {
+    write: (b) => {
+      samples.set(b, at);
+      at += b.length;
     },
-    beforeLimiter,
-    samplePeakDbfs: ampToDb(r.samplePeak),
-    truePeakDbtp: ampToDb(tp),
-  };
+    restart: () => (at = 0),
+  });
+  const { sampleCount: _n, ...figures } = figuresOf(r, clip.sampleRate, channel, opts);
+  return { ...figures, samples };
 }
 
 /**

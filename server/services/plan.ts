@@ -4,19 +4,18 @@
  * API cannot drift.
  */
 import { resolve } from 'node:path';
-import type { ClipAnalysis } from '../../shared/analysis/analyze-clip.ts';
 import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { CoilReport } from '../../shared/physics/coil/analyze.ts';
 import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
 import { type Advice, adviseGain } from '../../shared/plan/advise.ts';
 import { type Evaluation, type PlanClip, type PlanSettings, evaluateAtGain, planSettings } from '../../shared/plan/evaluate.ts';
-import { type PulseSource, toPlanClip } from '../../shared/plan/plan-clip.ts';
+import type { PulseSource } from '../../shared/plan/plan-clip.ts';
 import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { type PlanReport, planClipReport } from '../../shared/plan/report.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
-import type { DecodedClip } from '../audio/decode.ts';
-import { loadAndAnalyze } from './analysis.ts';
+import type { WelchSpectrum } from '../../shared/dsp/welch.ts';
+import { type ClipInfo, type PlanningAnalysis, loadForPlanning } from './analysis.ts';
 import { coilAtResonance, loadCoil, loadDriver } from './profiles.ts';
 
 /** The coil's voltage bound, arc reach and keep-out distance, for the cautions. */
@@ -44,7 +43,7 @@ export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' &
 /** The plan of one clip: the report at the given gain (or the advised one), and the evaluation behind it. */
 export function planClipDocument(
   planClip: PlanClip,
-  analysis: Pick<ClipAnalysis, 'spectrum'>,
+  analysis: { spectrum: { welch: WelchSpectrum } },
   coil: CoilReport,
   driver: DriverProfile,
   settings: PlanSettings,
@@ -58,23 +57,29 @@ export function planClipDocument(
   return { document: { ...report, keepOut: keepOutFigures(coil), cautions: planCautions(coil, driver) }, evaluation };
 }
 
-/** Decodes and analyses a clip file (absolute path) and turns it into the planner's input. */
+/**
+ * Decodes a clip file (absolute path) into the planner's input, keeping only what planning needs
+ * (the reductions, pulse candidates and averaged spectrum: services/analysis.ts loadForPlanning),
+ * not the samples.
+ */
 export async function loadPlanClip(
   path: string,
   driver: DriverProfile,
   channel: ModulationChannel,
   pulseSource: PulseSource,
   onProgress?: (fraction: number, stage: string) => void,
-): Promise<{ planClip: PlanClip; analysis: ClipAnalysis }> {
-  const { analysis, source } = await loadAndAnalyze(path, { channel, onProgress });
-  return { planClip: toPlanClip(path, analysis, source, driver, pulseSource), analysis };
+): Promise<{ planClip: PlanClip; analysis: PlanningAnalysis }> {
+  const { planClip, analysis } = await loadForPlanning(path, { name: path, pulses: driver.scheme === 'pulse', channel, pulseSource, onProgress });
+  return { planClip, analysis };
 }
 
 /** Everything render and preview share about one clip on one coil and driver. */
 export interface PreparedJob {
   clipPath: string;
-  clip: DecodedClip;
-  analysis: ClipAnalysis;
+  /** The decoded file's description (its samples are not kept: only the modulation source is). */
+  clip: ClipInfo;
+  /** What planning read of the clip (averaged spectrum; pitch track for pitch-locked pulses). */
+  analysis: PlanningAnalysis;
   channel: ModulationChannel;
   /** The modulation source (mono), linear full scale. */
   source: Float32Array;
@@ -86,8 +91,8 @@ export interface PreparedJob {
 }
 
 /**
- * Reads the profiles (first, so a bad profile fails before any decoding), then decodes and
- * analyses the clip and builds its plan view. Paths relative to `cwd`. InputErrors from every
+ * Reads the profiles (first, so a bad profile fails before any decoding), then decodes the clip
+ * into its modulation source and plan view (loadForPlanning: the decoded channels are not kept). Paths relative to `cwd`. InputErrors from every
  * step pass through.
  */
 export async function prepareJob(
@@ -111,9 +116,8 @@ export async function prepareLoadedJob(
   channel: ModulationChannel,
   onProgress?: (fraction: number, stage: string) => void,
 ): Promise<PreparedJob> {
-  const { clip, analysis, source } = await loadAndAnalyze(resolve(cwd, clipPath), { channel, onProgress });
-  const plan = toPlanClip(clipPath, analysis, source, driver);
-  return { clipPath, clip, analysis, channel, source, coilReport, coil: coilAtResonance(coilReport), driver, settings: planSettings(driver), plan };
+  const p = await loadForPlanning(resolve(cwd, clipPath), { name: clipPath, pulses: driver.scheme === 'pulse', channel, keepSource: true, onProgress });
+  return { clipPath, clip: p.clip, analysis: p.analysis, channel, source: p.source!, coilReport, coil: coilAtResonance(coilReport), driver, settings: planSettings(driver), plan: p.planClip };
 }
 
 /** The gain a command uses and where it came from. */

@@ -3,22 +3,20 @@
  * `coilcue preview` do and what the server's render jobs do, built once. Each returns the WAV bytes
  * and the JSON document the command prints with --json; writing the file is the caller's.
  */
-import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { LimitCheck } from '../../shared/plan/evaluate.ts';
 import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { limitLabel } from '../../shared/plan/limit-labels.ts';
-import { toPlanClip } from '../../shared/plan/plan-clip.ts';
 import { type LimitingNote, limitingNote } from '../../shared/plan/quality.ts';
 import { preEmphasisAdvice } from '../../shared/plan/report.ts';
 import { type ArcSound, type LevelTriple, arcSound } from '../../shared/preview/arc-sound.ts';
 import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
 import { ampToDb, finiteOrNull } from '../../shared/units.ts';
-import { DEFAULT_MAX_BYTES, DEFAULT_MAX_DURATION_S, decodeAudioBytes } from '../audio/decode.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
-import { type ClosedLoopReport, closedLoopCheck } from '../render/closed-loop.ts';
-import { type PreEmphasis, type RenderedModulation, encodeRender, quantisationMargin, renderGraph, renderModulation } from '../render/render-clip.ts';
+import { GraphStream, RENDER_BLOCK } from '../render/block-render.ts';
+import { type ClosedLoopReport, PlanReducer, closedLoopCheck } from '../render/closed-loop.ts';
+import { type PreEmphasis, type RenderedModulation, type RenderedModulationFigures, quantisationMargin, renderModulationWav } from '../render/render-clip.ts';
 import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
 
 /** The safety line both commands print once, and the API returns beside every render. */
@@ -77,7 +75,7 @@ function bindingOf(b: LimitCheck | null) {
 function renderSummary(
   files: { clip: string; out: string },
   format: WavSampleFormat,
-  r: RenderedModulation,
+  r: RenderedModulationFigures,
   job: PreparedJob,
   choice: GainChoice,
   loop: ClosedLoopReport,
@@ -91,7 +89,7 @@ function renderSummary(
     out: files.out,
     format,
     sampleRate: r.sampleRate,
-    durationS: r.samples.length / r.sampleRate,
+    durationS: r.sampleCount / r.sampleRate,
     channel: r.channel,
     scheme,
     gainDb: choice.gainDb,
@@ -146,8 +144,8 @@ export interface RenderOptions {
 
 /**
  * The coil-ready clip: gain (given or advised for the signal that reaches the coil), optional
- * pre-emphasis, the look-ahead limiter, encoded; then decoded from the very bytes and planned again
- * (the closed loop). InputError when the pre-emphasis corner is not below half the sample rate or
+ * pre-emphasis, the look-ahead limiter, encoded block by block; the samples the bytes hold (as a
+ * reader decodes them) are planned again at 0 dB (the closed loop). InputError when the pre-emphasis corner is not below half the sample rate or
  * no gain is safe.
  */
 export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ bytes: Uint8Array; summary: RenderSummary }> {
@@ -161,16 +159,40 @@ export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ b
       throw new InputError('bad-pre-emphasis', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower corner frequency`, 'preEmphasisHz');
     }
     preEmphasis = { cornerHz, shelfGainDb: emphasis.shelfDb };
-    // The advice must be for the signal that reaches the coil: plan the emphasised source.
-    const emphasised = await renderGraph(job.source, fs, 0, preEmphasis);
-    plan = toPlanClip(job.clipPath, analyzeClip({ sampleRate: fs, channels: [emphasised] }), emphasised, job.driver);
+    // The advice must be for the signal that reaches the coil: plan the emphasised source (block by
+    // block through the shelf, reduced to what planning reads as it goes).
+    plan = emphasisedPlan(job.source, fs, preEmphasis, job.clipPath, job.driver.scheme === 'pulse');
   }
   const choice = chooseGain(plan, job, o.gainDb);
-  const rendered = await renderModulation(job.clip, { channel: job.channel, gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format });
-  const bytes = encodeRender(rendered, o.format);
-  // Closed loop on what the file holds: decoded from the very bytes written (our own file: no size or length limit).
-  const decoded = await decodeAudioBytes(bytes, { maxBytes: Math.max(DEFAULT_MAX_BYTES, bytes.length), maxDurationS: Math.max(DEFAULT_MAX_DURATION_S, (2 * rendered.samples.length) / fs) });
-  const loop = closedLoopCheck({ sampleRate: decoded.sampleRate, channels: decoded.channels }, o.names.out, job.coil, job.driver, job.settings, choice.promised);
+  // Block by block into the file's bytes, and (closed loop) the samples the file holds as a reader
+  // decodes them into the planner's reductions, so nothing the length of the clip is kept but the bytes.
+  const reducer = new PlanReducer(job.source.length, fs, job.driver.scheme === 'pulse');
+  let bytes = new Uint8Array(0);
+  let at = 0;
+  const rendered = renderModulationWav(
+    job.source,
+    fs,
+    job.channel,
+    { gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format },
+    {
+      onChunk: (b) => {
+        if (at + b.length > bytes.length) {
+          const grown = new Uint8Array(Math.max(at + b.length, wavBytes(job.source.length, o.format)));
+          grown.set(bytes.subarray(0, at));
+          bytes = grown;
+        }
+        bytes.set(b, at);
+        at += b.length;
+      },
+      onDecoded: (x) => reducer.add(x),
+      onRestart: () => {
+        at = 0;
+        reducer.restart();
+      },
+    },
+  );
+  const loop = closedLoopCheck(reducer.result(o.names.out), o.names.out, job.coil, job.driver, job.settings, choice.promised);
+  bytes = bytes.subarray(0, at);
   const note =
     preEmphasis === null
       ? emphasis.note
@@ -178,7 +200,7 @@ export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ b
   return { bytes, summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
 }
 
-/** The shelf gain a render applies: the plan's advice for 'auto', else the number given (0: off). */
+
 /**
  * The shelf a render applies: the plan's advice for 'auto' (the one that holds across the
  * modulation corner's range when Q is not measured: shared/plan/report.ts preEmphasisAdvice), else
@@ -195,6 +217,26 @@ function chooseEmphasis(job: PreparedJob, asked: number | 'auto'): { shelfDb: nu
     return { shelfDb: 0, cornerHz, from: 'off', note: `no pre-emphasis: none advised (${why})` };
   }
   return { shelfDb: advice.shelfGainDb, cornerHz: advice.cornerHz, from: 'advised', note: `pre-emphasis as the plan advises (${advice.basis})` };
+}
+
+/** Bytes of a mono WAV of `frames` frames in `format` (header as encodeWav writes it). */
+function wavBytes(frames: number, format: WavSampleFormat): number {
+  const header = encodeWav({ sampleRate: 8000, channels: [new Float32Array(0)] }, { format }).length;
+  const data = frames * (format === 's16' ? 2 : format === 's24' ? 3 : 4);
+  return header + data + (data & 1);
+}
+
+/** The plan of `source` through the pre-emphasis shelf at 0 dB, without keeping the emphasised samples. */
+function emphasisedPlan(source: Float32Array, fs: number, preEmphasis: PreEmphasis, name: string, pulses: boolean) {
+  const graph = new GraphStream(fs, 0, preEmphasis);
+  const reducer = new PlanReducer(source.length, fs, pulses);
+  const block = new Float32Array(Math.min(RENDER_BLOCK, Math.max(1, source.length)));
+  for (let a = 0; a < source.length; a += block.length) {
+    const b = block.subarray(0, Math.min(block.length, source.length - a));
+    graph.process(source.subarray(a, a + b.length), b);
+    reducer.add(b);
+  }
+  return reducer.result(name);
 }
 
 const levelsDb = (l: LevelTriple) => ({

@@ -15,93 +15,18 @@
  * spectrum, spectrogram, pitch), which analyzeClip runs in order on one thread. On the server,
  * server/analysis/analyze-parallel.ts runs the same tasks on two threads for the same result.
  */
-import { type AudioClip, type ModulationChannel, clipDurationS, modulationSource } from '../audio/clip.ts';
-import type { FrameStats } from '../dsp/frame-stats.ts';
-import type { MagnitudeHistogram } from '../dsp/histogram.ts';
-import type { ChannelLevels } from '../dsp/level.ts';
-import type { LoudnessReport } from '../dsp/loudness.ts';
-import type { PitchTrack } from '../dsp/pitch.ts';
-import { type BandFraction, DEFAULT_BANDS, type FrequencyBand } from '../dsp/spectral-features.ts';
-import type { DisplaySpectrogram } from '../dsp/spectrogram.ts';
-import type { WelchSpectrum } from '../dsp/welch.ts';
+import { type AudioClip, clipDurationS, modulationSource } from '../audio/clip.ts';
+import { DEFAULT_BANDS } from '../dsp/spectral-features.ts';
 import { channelFigures, runChannelTask, runSourceTask, sourceIsTheClip } from './tasks.ts';
+import type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, SpectrumFigures } from './types.ts';
 
-export interface AnalyzeOptions {
-  /** The signal that drives the coil (default 'mix'). */
-  channel?: ModulationChannel;
-  /** Frame grid of the statistics, s (default 0.001). */
-  frameS?: number;
-  /** Peak follower attack / release time constants, s (defaults 0.001 / 0.05). */
-  attackS?: number;
-  releaseS?: number;
-  /** RMS envelope window, s (default 0.01). */
-  rmsWindowS?: number;
-  /** Welch FFT size (default 4096). */
-  fftSize?: number;
-  /** Bands for the energy fractions (default DEFAULT_BANDS). */
-  bands?: readonly FrequencyBand[];
-  /** Called between stages with a fraction 0…1 of the work done. */
-  onProgress?: (fraction: number, stage: string) => void;
-}
-
-/** Level figures with the true peak beside the sample peak. */
-export interface LevelFigures extends ChannelLevels {
-  /** True peak, dBTP (ITU-R BS.1770-4 Annex 2); for the mix source an upper bound (see analyzeClip). */
-  truePeakDbtp: number;
-}
-
-export interface ClipAnalysis {
-  sampleRate: number;
-  channels: number;
-  sampleCount: number;
-  durationS: number;
-  modulationChannel: ModulationChannel;
-  /** All channels together, with per-channel and modulation-source figures beside. */
-  level: LevelFigures & { perChannel: LevelFigures[]; modulation: LevelFigures };
-  loudness: LoudnessReport;
-  /** Frame statistics of the modulation source. */
-  frames: FrameStats;
-  /** Per-frame envelopes of the modulation source, linear full scale. */
-  envelope: { attackS: number; releaseS: number; rmsWindowS: number; peak: Float64Array; rms: Float64Array };
-  /** Magnitude histogram of the modulation source. */
-  histogram: MagnitudeHistogram;
-  spectrum: {
-    welch: WelchSpectrum;
-    centroidHz: number | null;
-    rolloff95Hz: number | null;
-    dominantHz: number | null;
-    bands: BandFraction[];
-    spectrogram: DisplaySpectrogram;
-    pitch: PitchTrack;
-  };
-}
+export type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, LevelFigures, SpectrumFigures } from './types.ts';
 
 /** Stages of the channel part, in the order analyzeClip runs them. */
 export const CHANNEL_STAGES = ['levels', 'true peak', 'loudness', 'frames'] as const;
 /** Stages of the spectrum part, in the order analyzeClip runs them (after the channel part). */
 export const SPECTRUM_STAGES = ['spectrum', 'pitch'] as const;
 const STAGES = [...CHANNEL_STAGES, ...SPECTRUM_STAGES] as const;
-
-/** The options of {@link analyzeClip} with every default filled in and checked against the clip. */
-export interface AnalyzeSettings {
-  channel: ModulationChannel;
-  /** Frame grid of the statistics, s. */
-  frameS: number;
-  /** Peak follower time constants, s. */
-  attackS: number;
-  releaseS: number;
-  /** RMS envelope window, s. */
-  rmsWindowS: number;
-  /** Welch FFT size, samples. */
-  fftSize: number;
-  bands: readonly FrequencyBand[];
-}
-
-/** Figures of the channel part: everything in ClipAnalysis but the spectrum. */
-export type ChannelFigures = Pick<ClipAnalysis, 'level' | 'loudness' | 'frames' | 'envelope' | 'histogram'>;
-
-/** Figures of the spectrum part: the spectrum of the modulation source. */
-export type SpectrumFigures = ClipAnalysis['spectrum'];
 
 /**
  * Fills in the defaults of `opts` and checks them against the clip. Throws RangeError for a clip

@@ -16,9 +16,9 @@ import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
 import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
 import { bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
 import { type DisplaySpectrogram, welchSpectrogram } from '../dsp/spectrogram.ts';
-import { type TruePeakReport, measureTruePeak } from '../dsp/true-peak.ts';
+import { type TruePeakReport, channelTruePeakLinear, measureTruePeak } from '../dsp/true-peak.ts';
 import { ampToDb } from '../units.ts';
-import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './analyze-clip.ts';
+import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './types.ts';
 
 /** Tasks that read every channel. */
 export const CHANNEL_TASKS = ['levels', 'true peak', 'loudness'] as const;
@@ -35,8 +35,8 @@ export interface TaskOutputs {
   levels: LevelReport;
   'true peak': TruePeakReport;
   loudness: LoudnessReport;
-  /** Level figures of the source alone. */
-  'source levels': ChannelLevels;
+  /** Level figures of the source alone, with its own true peak (BS.1770-4 Annex 2), linear. */
+  'source levels': ChannelLevels & { truePeakLinear: number };
   /** Frame statistics, the two envelopes built on them and the magnitude histogram (one pass: sourceStatsPass). */
   frames: { frames: FrameStats; peak: Float64Array; rms: Float64Array; histogram: MagnitudeHistogram };
   /** Welch PSD, the features read from it, and the display spectrogram (welchSpectrogram). */
@@ -95,7 +95,7 @@ export function runSourceTask<T extends SourceTask>(
   const out: { [K in SourceTask]?: TaskOutputs[K] } = {};
   switch (task as SourceTask) {
     case 'source levels':
-      out['source levels'] = measureLevels([source], { sampleRate }).overall;
+      out['source levels'] = { ...measureLevels([source], { sampleRate }).overall, truePeakLinear: channelTruePeakLinear(source) };
       break;
     case 'frames': {
       const { frames, peak, histogram } = sourceStatsPass(source, sampleRate, { attackS: s.attackS, releaseS: s.releaseS, frameS: s.frameS });
@@ -133,11 +133,17 @@ export function runSourceTask<T extends SourceTask>(
 export const sourceIsTheClip = (clip: AudioClip, source: Float32Array): boolean =>
   clip.channels.length === 1 && source === clip.channels[0];
 
+/** The source's level figures without the linear true peak the task carries beside them. */
+function withoutTruePeak(l: TaskOutputs['source levels']): ChannelLevels {
+  const { truePeakLinear: _tp, ...rest } = l;
+  return rest;
+}
+
 /**
- * The channel part's figures from its task outputs. The modulation source's true peak: exact for a
- * single channel (that channel's); for the mix, the largest channel's, an upper bound (the
- * oversampling filter is linear, so |mean of channels| ≤ max |channel| at every oversampled
- * instant) that spares a third filter pass. `sourceLevels` absent: the source is the clip itself.
+ * The channel part's figures from its task outputs. The modulation source's true peak is measured
+ * on the source itself (BS.1770-4 Annex 2 on the mix, or on the one channel): channels out of step
+ * partly cancel in the mix, so its true peak can lie far below either channel's. `sourceLevels`
+ * absent: the source is the clip itself (a mono clip's channel), whose true peak is the clip's.
  *
  * @example channelFigures(s, out.levels, out['true peak'], out.loudness, out['source levels'], out.frames).level.modulation.truePeakDbtp
  */
@@ -146,17 +152,16 @@ export function channelFigures(
   levels: LevelReport,
   tp: TruePeakReport,
   loudness: LoudnessReport,
-  sourceLevels: ChannelLevels | undefined,
+  sourceLevels: TaskOutputs['source levels'] | undefined,
   frames: TaskOutputs['frames'],
 ): ChannelFigures {
-  const which = s.channel;
-  const sourceTp = which === 'mix' ? tp.truePeakDbtp : ampToDb(tp.perChannelLinear[which === 'right' ? 1 : 0]);
+  const sourceTp = sourceLevels ? ampToDb(sourceLevels.truePeakLinear) : tp.truePeakDbtp;
   return {
     level: {
       ...levels.overall,
       truePeakDbtp: tp.truePeakDbtp,
       perChannel: levels.perChannel.map((l, i) => ({ ...l, truePeakDbtp: ampToDb(tp.perChannelLinear[i]) })),
-      modulation: { ...(sourceLevels ?? levels.overall), truePeakDbtp: sourceTp },
+      modulation: { ...(sourceLevels ? withoutTruePeak(sourceLevels) : levels.overall), truePeakDbtp: sourceTp },
     },
     loudness,
     frames: frames.frames,

@@ -296,3 +296,79 @@ export function decimateFrameStats(stats: FrameStats, factor: number, out?: Fram
     max,
   };
 }
+
+/**
+ * {@link computeFrameStats} block by block, for a signal whose length is known in advance but whose
+ * samples arrive in pieces (a render streamed to a file): `add` the samples in order in blocks of
+ * any lengths, then `result()`. Each frame's sums run over its samples in order, so the figures
+ * equal computeFrameStats's of the whole signal exactly. Memory: the frame arrays only.
+ *
+ * @example const s = new FrameStatsStream(n, 44100); s.add(a); s.add(b); s.result() // = computeFrameStats(a ++ b, 44100)
+ */
+export class FrameStatsStream {
+  private readonly stats: FrameStats;
+  private readonly spf: number;
+  /** Frame being summed, its end (exclusive), and the samples taken so far. */
+  private k = 0;
+  private end: number;
+  private at = 0;
+  private s = 0;
+  private s2 = 0;
+  private lo = Infinity;
+  private hi = -Infinity;
+
+  constructor(sampleCount: number, sampleRate: number, frameS = 0.001) {
+    this.spf = checkFrameLayout('FrameStatsStream', sampleRate, frameS);
+    const count = frameCount(sampleCount, this.spf);
+    this.stats = {
+      frameS,
+      sampleRate,
+      count,
+      samplesPerFrame: this.spf,
+      sampleCount,
+      mean: new Float64Array(count),
+      meanSquare: new Float64Array(count),
+      min: new Float32Array(count),
+      max: new Float32Array(count),
+    };
+    this.end = count <= 1 ? sampleCount : frameStart(1, this.spf);
+  }
+
+  /** Adds the next samples (at most sampleCount in all). */
+  add(block: Float32Array): void {
+    const st = this.stats;
+    let { k, end, at, s, s2, lo, hi } = this;
+    if (at + block.length > st.sampleCount) throw new RangeError(`FrameStatsStream.add: more than the ${st.sampleCount} samples announced`);
+    for (let i = 0; i < block.length; i++, at++) {
+      const x = block[i];
+      s += x;
+      s2 += x * x;
+      if (x < lo) lo = x;
+      if (x > hi) hi = x;
+      if (at + 1 === end) {
+        const start = k === 0 ? 0 : frameStart(k, this.spf);
+        const inv = 1 / (end - start);
+        st.mean[k] = s * inv;
+        st.meanSquare[k] = s2 * inv;
+        st.min[k] = lo;
+        st.max[k] = hi;
+        if (!Number.isFinite(st.meanSquare[k])) {
+          throw new RangeError(`FrameStatsStream: signal has a NaN or infinite sample in frame ${k} (near ${(k * st.frameS).toFixed(3)} s)`);
+        }
+        k++;
+        end = k + 1 >= st.count ? st.sampleCount : frameStart(k + 1, this.spf);
+        s = 0;
+        s2 = 0;
+        lo = Infinity;
+        hi = -Infinity;
+      }
+    }
+    Object.assign(this, { k, end, at, s, s2, lo, hi });
+  }
+
+  /** The frame statistics; RangeError when fewer samples than announced were added. */
+  result(): FrameStats {
+    if (this.at !== this.stats.sampleCount) throw new RangeError(`FrameStatsStream.result: ${this.at} of ${this.stats.sampleCount} samples added`);
+    return this.stats;
+  }
+}

@@ -90,77 +90,138 @@ function float32AtMost(x: number): number {
 }
 
 /**
- * One limiter pass (module comment, steps 1–5) of `x` at sample ceiling `c` into `out`.
+ * One limiter pass (module comment, steps 1–5) at sample ceiling `c`, block by block: the look-ahead
+ * deque, the release and the box filter's ring carry over from one `write` to the next, so any split
+ * of the signal into blocks gives the same output, bit for bit, as one call over the whole. Output
+ * sample k leaves once input k + L has arrived (a latency of L samples); `end` releases the last L.
+ * Memory: O(L), whatever the signal's length.
+ *
+ * Kernel: trusts its inputs (finite samples, c > 0, L ≥ 0 integer, 0 ≤ a < 1).
+ *
+ * @example const s = new LimiterStream(0.9, 220, 0.9995); let m = s.write(x, y); m += s.end(y.subarray(m));
+ */
+export class LimiterStream {
+  private readonly c: number;
+  private readonly cf: number;
+  private readonly L: number;
+  private readonly a: number;
+  private readonly W: number;
+  private readonly cap: number;
+  private readonly dqIdx: Float64Array;
+  private readonly dqVal: Float64Array;
+  private head = 0;
+  private tail = 0;
+  private readonly ring: Float64Array;
+  private slot = 0;
+  private sum: number;
+  private hPrev = 1;
+  /** The last L + 1 inputs, by index modulo L + 1 (the sample that leaves is L behind the newest). */
+  private readonly delay: Float32Array;
+  /** Index of the next input sample (j); the output index is j − L. */
+  private j = 0;
+  /** Lowest gain applied so far, linear. */
+  minGain = 1;
+  /** Samples whose gain was below 1, more than 1 dB below 1, and moved by the rounding clamp. */
+  limited = 0;
+  deep = 0;
+  clamped = 0;
+
+  constructor(c: number, L: number, a: number) {
+    this.c = c;
+    this.cf = float32AtMost(c);
+    this.L = L;
+    this.a = a;
+    this.W = L + 1;
+    this.cap = this.W + 1;
+    this.dqIdx = new Float64Array(this.cap);
+    this.dqVal = new Float64Array(this.cap);
+    this.ring = new Float64Array(this.W).fill(1);
+    this.sum = this.W;
+    this.delay = new Float32Array(L + 1);
+  }
+
+  /** Pushes `x` and writes the outputs that become ready into out[0…]; returns how many (≤ x.length). */
+  write(x: Float32Array, out: Float32Array): number {
+    return this.steps(x, x.length, out);
+  }
+
+  /** Releases the last outputs (the required gain past the end is 1) into out[0…]; returns how many (≤ L). */
+  end(out: Float32Array): number {
+    return this.steps(null, this.L, out);
+  }
+
+  /** `count` steps, each pushing x[i] (or 1 for the gain past the end when x is null). */
+  private steps(x: Float32Array | null, count: number, out: Float32Array): number {
+    const { c, cf, L, a, W, cap, dqIdx, dqVal, ring, delay } = this;
+    const D = L + 1;
+    let { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped } = this;
+    let o = 0;
+    for (let i = 0; i < count; i++, j++) {
+      // Push the required gain of sample j (1 beyond the clip's end).
+      let v = 1;
+      if (x !== null) {
+        const xj = x[i];
+        delay[j % D] = xj;
+        const ax = Math.abs(xj);
+        if (ax > c) v = c / ax;
+      }
+      while (tail !== head) {
+        const back = tail === 0 ? cap - 1 : tail - 1;
+        if (dqVal[back] >= v) tail = back;
+        else break;
+      }
+      dqIdx[tail] = j;
+      dqVal[tail] = v;
+      tail = tail + 1 === cap ? 0 : tail + 1;
+      const k = j - L;
+      if (k < 0) continue;
+      // Drop indices that left the window [k, k + L]; the one just pushed stays, so the deque is not empty.
+      while (dqIdx[head] < k) head = head + 1 === cap ? 0 : head + 1;
+      const m = dqVal[head];
+      const h = m <= hPrev ? m : m + (hPrev - m) * a;
+      hPrev = h;
+      sum += h - ring[slot];
+      ring[slot] = h;
+      slot = slot + 1 === W ? 0 : slot + 1;
+      // Re-add the window exactly now and then so rounding in the running sum cannot accumulate.
+      if ((k & 0xffff) === 0xffff) {
+        sum = 0;
+        for (let q = 0; q < W; q++) sum += ring[q];
+      }
+      let g = sum / W;
+      if (g > 1) g = 1;
+      if (g < 1) {
+        limited++;
+        if (g < ONE_DB_DOWN) deep++;
+        if (g < minGain) minGain = g;
+      }
+      let y = Math.fround(delay[k % D] * g);
+      if (y > cf) {
+        y = cf;
+        clamped++;
+      } else if (y < -cf) {
+        y = -cf;
+        clamped++;
+      }
+      out[o++] = y;
+    }
+    Object.assign(this, { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped });
+    return o;
+  }
+}
+
+/**
+ * One limiter pass over the whole of `x` into `out` (LimiterStream in one block).
  * Kernel: trusts its inputs (finite samples, c > 0, L ≥ 0 integer, 0 ≤ a < 1).
  */
 function limitPass(x: Float32Array, c: number, L: number, a: number, out: Float32Array) {
-  const n = x.length;
-  const W = L + 1;
-  const cf = float32AtMost(c);
-  // Monotonic deque of (index, required gain) over the look-ahead window: a ring buffer of W + 1
-  // slots, front at `head`, back at `tail` (exclusive). Indices are stored as numbers (exact).
-  const cap = W + 1;
-  const dqIdx = new Float64Array(cap);
-  const dqVal = new Float64Array(cap);
-  let head = 0;
-  let tail = 0;
-  // Box filter over the last W values of h; h before the clip is 1.
-  const ring = new Float64Array(W).fill(1);
-  let slot = 0;
-  let sum = W;
-  let hPrev = 1;
-  let minGain = 1;
-  let limited = 0;
-  let deep = 0;
-  let clamped = 0;
-  for (let k = -L; k < n; k++) {
-    // Push the required gain of sample k + L (1 beyond the clip's end).
-    const j = k + L;
-    let v = 1;
-    if (j < n) {
-      const ax = Math.abs(x[j]);
-      if (ax > c) v = c / ax;
-    }
-    while (tail !== head) {
-      const back = tail === 0 ? cap - 1 : tail - 1;
-      if (dqVal[back] >= v) tail = back;
-      else break;
-    }
-    dqIdx[tail] = j;
-    dqVal[tail] = v;
-    tail = tail + 1 === cap ? 0 : tail + 1;
-    if (k < 0) continue;
-    // Drop indices that left the window [k, k + L]; the one just pushed stays, so the deque is not empty.
-    while (dqIdx[head] < k) head = head + 1 === cap ? 0 : head + 1;
-    const m = dqVal[head];
-    const h = m <= hPrev ? m : m + (hPrev - m) * a;
-    hPrev = h;
-    sum += h - ring[slot];
-    ring[slot] = h;
-    slot = slot + 1 === W ? 0 : slot + 1;
-    // Re-add the window exactly now and then so rounding in the running sum cannot accumulate.
-    if ((k & 0xffff) === 0xffff) {
-      sum = 0;
-      for (let q = 0; q < W; q++) sum += ring[q];
-    }
-    let g = sum / W;
-    if (g > 1) g = 1;
-    if (g < 1) {
-      limited++;
-      if (g < ONE_DB_DOWN) deep++;
-      if (g < minGain) minGain = g;
-    }
-    let y = Math.fround(x[k] * g);
-    if (y > cf) {
-      y = cf;
-      clamped++;
-    } else if (y < -cf) {
-      y = -cf;
-      clamped++;
-    }
-    out[k] = y;
-  }
-  return { minGain, limited, deep, clamped };
+  const s = new LimiterStream(c, L, a);
+  const m = s.write(x, out);
+  // the pass's last L outputs (fewer for a signal shorter than L)
+  const tail = new Float32Array(L);
+  const t = s.end(tail);
+  out.set(tail.subarray(0, t), m);
+  return { minGain: s.minGain, limited: s.limited, deep: s.deep, clamped: s.clamped };
 }
 
 /**

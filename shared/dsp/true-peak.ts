@@ -286,3 +286,82 @@ export function measureTruePeak(channels: Float32Array[], sampleRate: number): T
   const truePeakLinear = Math.max(...perChannelLinear);
   return { truePeakLinear, truePeakDbtp: ampToDb(truePeakLinear), perChannelLinear };
 }
+
+/**
+ * The true peak of one channel measured block by block (ITU-R BS.1770-4 Annex 2, as
+ * {@link channelTruePeakLinear}): feed the samples in order with `add`, in blocks of any lengths,
+ * then read `value()`. The filter's 11 samples of history are carried from block to block, the
+ * filter starts from rest and `value()` runs it 11 periods past the last sample (zeros after), so
+ * the result equals channelTruePeakLinear of the whole signal exactly: the same sums of the same
+ * products, and the same exact skip (runs of 16 outputs whose bound 2.023 × max |input| cannot beat
+ * the running maximum are not filtered). Memory: one block plus 11 samples.
+ *
+ * @example const m = new TruePeakMeter(); m.add(a); m.add(b); m.value() // = channelTruePeakLinear(a ++ b)
+ */
+export class TruePeakMeter {
+  /** [11 samples of history | the block]; grown to the largest block seen. */
+  private buf = new Float32Array(TAPS - 1 + 4096);
+  private run = 0;
+  private samplePeak = 0;
+  private ended = false;
+
+  /** Resets to a new signal. */
+  reset(): void {
+    this.buf.fill(0, 0, TAPS - 1);
+    this.run = 0;
+    this.samplePeak = 0;
+    this.ended = false;
+  }
+
+  /** Adds the next samples (finite values, full scale ±1). */
+  add(block: Float32Array): void {
+    if (this.ended) throw new RangeError('TruePeakMeter.add: the signal was ended by value(); reset() first');
+    const h = TAPS - 1;
+    const len = block.length;
+    if (len === 0) return;
+    if (this.buf.length < h + len) {
+      const grown = new Float32Array(h + len);
+      grown.set(this.buf.subarray(0, h));
+      this.buf = grown;
+    }
+    const buf = this.buf;
+    buf.set(block, h);
+    let sp = this.samplePeak;
+    for (let i = 0; i < len; i++) {
+      const a = Math.abs(block[i]);
+      if (a > sp) sp = a;
+    }
+    this.samplePeak = sp;
+    this.filterRange(buf, h + len);
+    buf.copyWithin(0, len, len + h);
+  }
+
+  /** True peak of everything added: max(sample peak, max |4× oversampled|), linear full scale. Ends the signal. */
+  value(): number {
+    if (!this.ended) {
+      // the filter's tail: 11 outputs past the last sample, with zeros after it
+      const h = TAPS - 1;
+      this.buf.fill(0, h, 2 * h);
+      this.filterRange(this.buf, 2 * h);
+      this.ended = true;
+    }
+    return Math.max(this.run, this.samplePeak);
+  }
+
+  /** Outputs at buffer positions [11, end), in runs of 16 with the exact skip of peakKernel. */
+  private filterRange(buf: Float32Array, end: number): void {
+    const h = TAPS - 1;
+    const bound = ABS_TAP_SUM_BOUND;
+    let run = Math.max(this.run, this.samplePeak);
+    for (let start = h; start < end; start += CHUNK) {
+      const stop = Math.min(end, start + CHUNK);
+      let m = 0;
+      for (let i = start - h; i < stop; i++) {
+        const a = Math.abs(buf[i]);
+        if (a > m) m = a;
+      }
+      if (m * bound > run) run = filteredPeak(buf, start, stop, run);
+    }
+    this.run = run;
+  }
+}

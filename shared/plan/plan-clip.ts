@@ -16,9 +16,9 @@ export type PulseSource = 'zero-crossing' | 'pitch-locked';
  */
 export function toPlanClip(
   name: string,
-  analysis: ClipAnalysis,
+  analysis: Pick<ClipAnalysis, 'durationS' | 'sampleRate' | 'frames' | 'histogram'> & { spectrum: Pick<ClipAnalysis['spectrum'], 'pitch'> },
   source: Float32Array,
-  driver: DriverProfile,
+  driver: Pick<DriverProfile, 'scheme'>,
   pulseSource: PulseSource = 'zero-crossing',
 ): PlanClip {
   const clip: PlanClip = { name, durationS: analysis.durationS, frames: analysis.frames, histogram: analysis.histogram };

@@ -59,3 +59,31 @@ describe('analyzeClip', () => {
     expect(() => analyzeClip({ sampleRate: FS, channels: [tone(440, 0.5, 1)] }, { channel: 'right' })).toThrow(/mono/);
   });
 });
+
+describe('the modulation source’s true peak', () => {
+  // An fs/4 tone at phase π/4 has samples of ±A/√2 while its waveform peaks at A: the standard
+  // case where the 4× oversampled true peak reads 3.01 dB above the sample peak (ITU-R BS.1770-4
+  // Annex 2; 20·log10(√2) = 3.0103 dB). With the right channel −0.99 times the left, the mix is
+  // 0.005 times the left: 46.02 dB below either channel (20·log10(0.005) = −46.02 dB).
+  const n = 2 * FS;
+  const left = Float32Array.from({ length: n }, (_, i) => 0.9 * Math.sin((Math.PI / 2) * i + Math.PI / 4));
+  const right = left.map((v) => -0.99 * v);
+  const a = analyzeClip({ sampleRate: FS, channels: [left, right] }, { channel: 'mix' });
+
+  it('is measured on the mix, far below either channel when the channels cancel', () => {
+    const channelTp = a.level.perChannel[0].truePeakDbtp;
+    // Each channel: 0.9 → −0.915 dBTP; the Annex 2 interpolator's gain at fs/4 reads it 0.08 dB
+    // high (measured), so 0.15 dB.
+    expect(Math.abs(channelTp - 20 * Math.log10(0.9))).toBeLessThan(0.15);
+    // The mix's own true peak: 0.9 × 0.005 → −46.94 dBTP, with the same interpolator error.
+    expect(Math.abs(a.level.modulation.truePeakDbtp - 20 * Math.log10(0.9 * 0.005))).toBeLessThan(0.15);
+    expect(a.level.modulation.truePeakDbtp).toBeLessThan(channelTp - 40);
+    // and not below the mix's sample peak (true peak ≥ sample peak by construction of Annex 2)
+    expect(a.level.modulation.truePeakDbtp).toBeGreaterThanOrEqual(a.level.modulation.samplePeakDbfs - 1e-9);
+  });
+
+  it('is the channel’s own for a single-channel source', () => {
+    const b = analyzeClip({ sampleRate: FS, channels: [left, right] }, { channel: 'right' });
+    expect(b.level.modulation.truePeakDbtp).toBeCloseTo(b.level.perChannel[1].truePeakDbtp, 9);
+  });
+});

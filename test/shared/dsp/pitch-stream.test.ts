@@ -1,7 +1,8 @@
 // The parts of shared/dsp/pitch.ts that work block by block: the decimation cascade (decimate) and
 // the pitch track reading its decimated signal as it is made, over clips long enough for many blocks.
 import { describe, expect, it } from 'vitest';
-import { decimate, decimationFilter, yinPitchTrack } from '../../../shared/dsp/pitch.ts';
+import { decimate, decimationFilter } from '../../../shared/dsp/decimate.ts';
+import { yinPitchTrack } from '../../../shared/dsp/pitch.ts';
 
 /** Reference: y[m] = Σₖ h[k]·x[m·q + k − (K−1)/2] over the whole signal, zeros outside, rounded to float32. */
 function firWhole(x: ArrayLike<number>, q: number, h: Float64Array): Float32Array {

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { decimate, decimationFilter, yinPitchTrack } from '../../../shared/dsp/pitch.ts';
+import { decimate, decimationFilter } from '../../../shared/dsp/decimate.ts';
+import { yinPitchTrack } from '../../../shared/dsp/pitch.ts';
 
 /** Sum of harmonics h·f0 with the given amplitudes (index 0 = fundamental), phases 0.7·h. */
 function harmonic(f0: number, amps: number[], seconds: number, fs: number): Float32Array {
