@@ -42,7 +42,24 @@ export function axis(quantity: string, unit: string, extra: Partial<uPlot.Axis> 
 
 /** Ticks on a log axis written as 10, 100, 1k, 10k (and 1m, 10m for fractions). */
 export function logTickValues(_u: uPlot, splits: number[]): string[] {
-  return splits.map((v) => (Number.isInteger(Math.log10(v) + 1e-9) || [2, 5].includes(Number(String(v)[0])) ? siShort(v) : ''));
+  return splits.map((v) => {
+    if (!(v > 0)) return '';
+    const mantissa = Math.round(v / 10 ** Math.floor(Math.log10(v) + 1e-9));
+    return mantissa === 1 || mantissa === 2 || mantissa === 5 ? siShort(v) : '';
+  });
+}
+
+/** Splits of a log axis at 1, 2 and 5 times each power of ten within [min, max]. */
+export function logSplits(_u: uPlot, _axis: number, min: number, max: number): number[] {
+  const out: number[] = [];
+  if (!(min > 0) || !(max > min)) return out;
+  for (let e = Math.floor(Math.log10(min)); e <= Math.ceil(Math.log10(max)); e++) {
+    for (const m of [1, 2, 5]) {
+      const v = m * 10 ** e;
+      if (v >= min * (1 - 1e-9) && v <= max * (1 + 1e-9)) out.push(v);
+    }
+  }
+  return out;
 }
 
 /** A number with an SI prefix, 3 significant figures: 1.50 k, 22.0 µ. */

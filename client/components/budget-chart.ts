@@ -1,7 +1,7 @@
 import { html } from 'lit';
 import uPlot from 'uplot';
 import type { PlanDocument } from '../api.ts';
-import { DASHES, UplotElement, axis, cssVar, logTickValues, seriesColour, siShort } from '../charts/chart-kit.ts';
+import { DASHES, UplotElement, axis, cssVar, logSplits, logTickValues, seriesColour, siShort } from '../charts/chart-kit.ts';
 
 type Curve = PlanDocument['budget'][number];
 
@@ -65,7 +65,7 @@ export class BudgetChart extends UplotElement {
       width,
       height: this.chartHeight,
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
-      axes: [axis('burst length', 's', { values: logTickValues }), axis('share of full operation', 'fraction', { size: 60, values: logTickValues })],
+      axes: [axis('burst length', 's', { splits: logSplits, values: logTickValues }), axis('share of full operation', 'fraction', { size: 60, splits: logSplits, values: logTickValues })],
       series,
       hooks: {
         draw: [

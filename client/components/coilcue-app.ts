@@ -256,6 +256,7 @@ export class CoilcueApp extends LitElement {
             .analysis=${a?.analysis ?? null}
             .display=${a?.display ?? null}
             .busy=${this.planWords()}
+            .clipName=${clip?.name ?? null}
             @gain-change=${(e: CustomEvent<{ gainDb: number | null }>) => (this.gainDb = e.detail.gainDb)}
           ></verdict-screen>
         </div>

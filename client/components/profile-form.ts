@@ -14,6 +14,9 @@ import {
   type SchemaNode,
 } from '../../shared/display/schema-walk.ts';
 
+/** Help text as a sentence: capitalised, ending in a full stop. */
+const sentence = (t: string): string => (t ? `${t[0].toUpperCase()}${t.slice(1)}${/[.!?)]$/.test(t) ? '' : '.'}` : '');
+
 /**
  * <profile-form>: a form generated from a profile's TypeBox schema: every number with its unit
  * beside it, the schema's range as the input's bounds and in words, the schema's description as
@@ -227,7 +230,7 @@ export class ProfileForm extends LitElement {
         />
         <span class="unit" aria-hidden=${unit ? 'false' : 'true'}>${unit || ' '}</span>
       </span>
-      <small class="help" id=${`${id}-help`}>${help}${range && !help.includes(range) ? ` Allowed: ${range}${unit ? ` ${unit}` : ''}.` : ''}${nullable ? ' Leave empty if not known.' : ''}</small>
+      <small class="help" id=${`${id}-help`}>${sentence(help)}${range && !help.includes(range) ? ` Allowed: ${range}${unit ? ` ${unit}` : ''}.` : ''}${nullable ? ' Leave empty if not known.' : ''}</small>
       ${this.errorFor(path, own)}
     </div>`;
   }

@@ -1,6 +1,6 @@
 import { html } from 'lit';
 import type uPlot from 'uplot';
-import { UplotElement, axis, logTickValues, siShort } from '../charts/chart-kit.ts';
+import { UplotElement, axis, logSplits, logTickValues, siShort } from '../charts/chart-kit.ts';
 import { heatColour, spectrogramGrid } from '../../shared/display/heat.ts';
 
 /**
@@ -92,7 +92,7 @@ export class SpectrogramChart extends UplotElement {
       legend: { show: false },
       cursor: { drag: { x: false, y: false } },
       scales: { x: { time: false }, y: { distr: 3, range: [g.freqs[0], g.freqs[g.freqs.length - 1]] as [number, number] } },
-      axes: [axis('time', 's'), axis('frequency', 'Hz', { values: logTickValues, size: 60 })],
+      axes: [axis('time', 's'), axis('frequency', 'Hz', { splits: logSplits, values: logTickValues, size: 60 })],
       series: [{}, { show: false, points: { show: false } }],
       hooks: {
         drawClear: [
@@ -111,7 +111,7 @@ export class SpectrogramChart extends UplotElement {
               const y0 = u.valToPos(hi, 'y', true);
               const x0 = u.valToPos(this.timeS[0], 'x', true);
               const x1 = u.valToPos(this.timeS[this.timeS.length - 1], 'x', true);
-              ctx.drawImage(this.image, 0, rows - 1 - f, this.image.width, 1, Math.max(left, x0), y0, Math.min(left + w, x1) - Math.max(left, x0), Math.max(1, y1 - y0));
+              ctx.drawImage(this.image, 0, rows - 1 - f, this.image.width, 1, Math.max(left, x0), y0, Math.min(left + w, x1) - Math.max(left, x0), Math.max(1, y1 - y0) + 1);
             }
             ctx.restore();
             void top;

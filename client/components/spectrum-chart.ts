@@ -1,6 +1,6 @@
 import { html } from 'lit';
 import type uPlot from 'uplot';
-import { UplotElement, axis, logTickValues, markerLine, seriesColour, siShort } from '../charts/chart-kit.ts';
+import { UplotElement, axis, logSplits, logTickValues, markerLine, seriesColour, siShort } from '../charts/chart-kit.ts';
 
 /**
  * <spectrum-chart>: the clip's average spectrum (Welch, dB re full scale) on a log frequency
@@ -52,7 +52,7 @@ export class SpectrumChart extends UplotElement {
       width,
       height: this.chartHeight,
       scales: { x: { time: false, distr: 3 } },
-      axes: [axis('frequency', 'Hz', { values: logTickValues }), axis('power', 'dB re full scale', { size: 60 })],
+      axes: [axis('frequency', 'Hz', { splits: logSplits, values: logTickValues }), axis('power', 'dB re full scale', { size: 60 })],
       series: [{ label: 'frequency (Hz)', value: (_u, v) => (v == null ? '—' : `${siShort(v)}Hz`) }, { label: 'power', stroke: seriesColour(0), width: 1.5 }],
       plugins: [markerLine(() => this.cornerHz, () => `modulation corner ${siShort(this.cornerHz ?? 0)}Hz`)],
     };

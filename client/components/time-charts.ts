@@ -244,15 +244,16 @@ export class TimeCharts extends LitElement {
       data.push(d.junctionC);
       series.push({ label: `${d.role} junction`, stroke: seriesColour(i), width: 2, dash: DASHES[i % DASHES.length] });
     });
-    // Limit lines: the planning limit (Tj max − margin) and Tj max, per distinct value.
-    const limits = new Map<number, string>();
+    // Limit lines per device: the planning limit (Tj max − margin) and Tj max.
+    const limits = new Map<string, number>();
     for (const d of t.devices) {
-      limits.set(d.limitC, `limit ${d.limitC.toFixed(0)} °C (Tj max − margin)`);
-      if (d.tjMaxC !== undefined) limits.set(d.tjMaxC, `Tj max ${d.tjMaxC.toFixed(0)} °C`);
+      limits.set(`${d.role} limit ${d.limitC.toFixed(0)} °C (Tj max − margin)`, d.limitC);
+      if (d.tjMaxC !== undefined) limits.set(`${d.role} Tj max ${d.tjMaxC.toFixed(0)} °C`, d.tjMaxC);
     }
-    for (const [v, label] of limits) {
+    for (const [label, v] of limits) {
+      const tjMax = label.includes('Tj max ');
       data.push(t.timeS.map(() => v));
-      series.push({ label, stroke: label.startsWith('Tj') ? cssVar('--c-vermillion') : cssVar('--fg'), width: 1.5, dash: label.startsWith('Tj') ? [2, 3] : [8, 4] });
+      series.push({ label, stroke: tjMax ? cssVar('--c-vermillion') : cssVar('--fg'), width: 1.5, dash: tjMax ? [2, 3] : [8, 4], points: { show: false } });
     }
     return {
       series: series.length + 1,

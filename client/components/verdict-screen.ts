@@ -19,7 +19,7 @@ const COLUMNS = 1000;
  * modulation preview re-fetched at the zoomed range, junction temperatures) and the duty budget.
  *
  * Properties: `plan`, `analysis`, `display` (the whole clip's chart data), `busy` (words while
- *   the plan is being made, or null).
+ *   the plan is being made, or null), `clipName` (as the person named the clip).
  * Events: `gain-change` { gainDb } when the person settles on a gain (slider released).
  */
 export class VerdictScreen extends LitElement {
@@ -28,6 +28,7 @@ export class VerdictScreen extends LitElement {
     analysis: { attribute: false },
     display: { attribute: false },
     busy: { attribute: false },
+    clipName: { attribute: false },
     chosenDb: { state: true },
     pendingDb: { state: true },
     range: { state: true },
@@ -37,6 +38,7 @@ export class VerdictScreen extends LitElement {
   declare analysis: Analysis | null;
   declare display: DisplayData | null;
   declare busy: string | null;
+  declare clipName: string | null;
   declare chosenDb: number | null;
   declare pendingDb: number | null;
   declare range: { fromS: number; toS: number } | null;
@@ -76,6 +78,7 @@ export class VerdictScreen extends LitElement {
     this.analysis = null;
     this.display = null;
     this.busy = null;
+    this.clipName = null;
     this.chosenDb = null;
     this.pendingDb = null;
     this.range = null;
@@ -144,7 +147,7 @@ export class VerdictScreen extends LitElement {
     const b = doc.binding;
     return html`<div class="verdict">
       <section class="answer" aria-labelledby="answer-label">
-        <p id="answer-label" class="answer-label">Advised gain for “${doc.clip}”</p>
+        <p id="answer-label" class="answer-label">Advised gain for “${this.clipName ?? doc.clip.split(/[\\/]/).pop()}”</p>
         <p class="answer-figure" data-advised-gain=${doc.advisedGainDb ?? 'none'}>
           ${doc.advisedGainDb === null ? 'No safe gain' : formatDb(doc.advisedGainDb, 'dB', true)}
         </p>
