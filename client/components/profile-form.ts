@@ -68,6 +68,13 @@ export class ProfileForm extends LitElement {
     if (changed.has('value') && this.value !== this.lastEmitted) this.raw.clear();
   }
 
+  protected override updated(): void {
+    // Menus show their value even where the options were rendered after the select.
+    for (const sel of this.querySelectorAll<HTMLSelectElement>('select[data-value]')) {
+      if (sel.value !== sel.dataset.value) sel.value = sel.dataset.value ?? '';
+    }
+  }
+
   private emit(path: string, v: unknown): void {
     const value = setAt(this.value ?? {}, path, v);
     this.lastEmitted = value;
@@ -129,7 +136,7 @@ export class ProfileForm extends LitElement {
               <label for=${id}>${labelOfKey(k.tag)}</label>
               <select
                 id=${id}
-                .value=${current}
+                data-value=${current}
                 @change=${(e: Event) => {
                   const next = k.variants.find((x) => x.value === (e.target as HTMLSelectElement).value)!;
                   this.emit(path, defaultFor(next.schema));
@@ -262,6 +269,7 @@ export class ProfileForm extends LitElement {
       <select
         id=${id}
         name=${path}
+        data-value=${v === undefined ? '' : String(v)}
         aria-describedby=${`${id}-help`}
         @change=${(e: Event) => {
           const s = (e.target as HTMLSelectElement).value;
