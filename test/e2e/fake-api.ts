@@ -13,10 +13,10 @@ import fastifyStatic from '@fastify/static';
 import { createHash, randomUUID } from 'node:crypto';
 import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { encodeWav } from '../../server/audio/wav.ts';
-import { analysisDocument } from '../../server/services/analysis.ts';
+import { analysisDocument, analyzeFile } from '../../server/services/analysis.ts';
 import { planClipDocument, prepareLoadedJob, type PreparedJob } from '../../server/services/plan.ts';
 import { coilAtResonance, coilReportFor } from '../../server/services/profiles.ts';
 import { previewJob, renderJob } from '../../server/services/render.ts';
@@ -70,7 +70,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
   const clips = new Map<string, ClipRow>();
   const jobs = new Map<string, Record<string, unknown>>();
   const analyses = new Map<string, { row: Record<string, unknown>; prepared: Map<string, PreparedJob> }>();
-  const prepared = new Map<string, PreparedJob>();
+  const prepared = new Map<string, PreparedJob & { full: Awaited<ReturnType<typeof analyzeFile>> }>();
   const plans = new Map<string, Record<string, unknown> & { id: string; job: PreparedJob; gainDb: number | null }>();
   const sets = new Map<string, Record<string, unknown> & { id: string }>();
   const setPlans = new Map<string, unknown>();
@@ -138,7 +138,9 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
     let p = prepared.get(key);
     if (!p) {
       const driver = drivers.get(driverId)!.profile;
-      p = await prepareLoadedJob(dir, clips.get(clipId)!.path, coilReportFor(coils.get(coilId)!.profile, driver), driver, 'mix', onProgress);
+      const job = await prepareLoadedJob(dir, clips.get(clipId)!.path, coilReportFor(coils.get(coilId)!.profile, driver), driver, 'mix', onProgress);
+      // The planner keeps only its reductions; the charts need the whole analysis.
+      p = Object.assign(job, { full: await analyzeFile(resolve(dir, clips.get(clipId)!.path)) });
       prepared.set(key, p);
     }
     return p;
@@ -196,7 +198,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
       const first = [...coils.keys()][0];
       const firstDriver = [...drivers.keys()][0];
       const p = await prepare(clipId, first, firstDriver, progress);
-      Object.assign(row, { state: 'done', summary: analysisDocument(p.analysis) });
+      Object.assign(row, { state: 'done', summary: analysisDocument(p.full) });
       return id;
     });
     row.jobId = j.id;
@@ -210,7 +212,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
     if (!a) return problem(reply, 404, 'not-found', 'no such analysis');
     const q = req.query as { columns?: string; fromS?: string; toS?: string };
     const p = await prepare(a.row.clipId as string, [...coils.keys()][0], [...drivers.keys()][0]);
-    const an = p.analysis;
+    const an = p.full;
     const f = an.frames;
     const fromS = q.fromS ? Number(q.fromS) : 0;
     const toS = q.toS ? Number(q.toS) : an.durationS;

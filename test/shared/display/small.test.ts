@@ -77,7 +77,7 @@ describe('the verdict in words', () => {
     expect(rows[1].ok).toBe(false);
   });
   it('names the binding limit and device', () => {
-    const w = bindingWords({ binding: { limit: 'junction-temperature', role: 'pass', atS: 4, value: 125.1, allowed: 125, unit: 'C' }, advisedGainDb: 2, unsafeOnSilence: false });
+    const w = bindingWords({ binding: { limit: 'junction-temperature', label: 'junction temperature (pass)', role: 'pass', atS: 4, value: 125.1, allowed: 125, unit: 'C' }, advisedGainDb: 2, unsafeOnSilence: false });
     expect(w).toBe('The junction temperature of the pass transistor binds: 125.1 °C against its limit of 125.0 °C');
     expect(bindingWords({ binding: null, advisedGainDb: null, unsafeOnSilence: false })).toMatch(/No gain/);
   });
