@@ -4,6 +4,7 @@
  * shared/physics/coil/analyze.ts; this file only joins them so every caller words its errors alike.
  */
 import { analyzeCoil, type CoilReport } from '../../shared/physics/coil/analyze.ts';
+import { coilDriveContext } from '../../shared/physics/coil/drive-context.ts';
 import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
 import { type CoilProfile, parseCoilProfile } from '../../shared/schemas/coil.ts';
 import { type DriverProfile, parseDriverProfile } from '../../shared/schemas/driver.ts';
@@ -11,27 +12,10 @@ import { readJsonFile } from './read-json.ts';
 
 /**
  * The coil report. With the driver, its figures feed the coil's voltage bound and arc reach (and
- * so the keep-out distance): supply voltage and full-rail current for the input power, and for
- * the pulse scheme the longest on-time for the energy bound (a continuous rail has no per-pulse
- * energy, so only the arc-reach rule applies there) and the mean input power V·I·maxDuty for the
- * arc-reach rule (rail schemes: V·I, continuous full drive).
+ * so the keep-out distance): shared/physics/coil/drive-context.ts says which.
  */
 export function coilReportFor(profile: CoilProfile, driver?: DriverProfile): CoilReport {
-  if (!driver) return analyzeCoil(profile);
-  const pulse = driver.scheme === 'pulse' ? driver.pulse : undefined;
-  return analyzeCoil(profile, {
-    supplyVoltageV: driver.supplyVoltageV,
-    fullRailCurrentA: driver.fullRailCurrentA,
-    // The arc-reach rule wants the MEAN input power: a pulse driver draws V·I only while on, so its
-    // highest mean over a clip is V·I times the profile's overall duty limit.
-    ...(pulse
-      ? {
-          pulseOnTimeS: pulse.maxOnTimeS,
-          inputPowerW: driver.supplyVoltageV * driver.fullRailCurrentA * pulse.maxDuty,
-          inputPowerBasis: `supply voltage × full-rail current × the profile's maximum duty ${(pulse.maxDuty * 100).toFixed(3).replace(/\.?0+$/, '')} %: the highest mean over a whole clip`,
-        }
-      : {}),
-  });
+  return driver ? analyzeCoil(profile, coilDriveContext(driver)) : analyzeCoil(profile);
 }
 
 /** What the planner needs of the coil: its resonance and Q. */

@@ -1,11 +1,12 @@
 /**
  * The coil's figures while a person edits its profile: validate, then analyse with the driver's
- * drive figures where the driver validates (as the server's coil report does: supply voltage and
- * full-rail current always, the longest on-time for the pulse scheme). Pure; runs in the browser
+ * drive figures where the driver validates (shared/physics/coil/drive-context.ts, as the server's
+ * coil report). Pure; runs in the browser
  * on every keystroke (a few milliseconds).
  */
 import { InputError } from '../errors.ts';
 import { analyzeCoil, type CoilDriveContext, type CoilReport } from '../physics/coil/analyze.ts';
+import { coilDriveContext } from '../physics/coil/drive-context.ts';
 import { parseCoilProfile } from '../schemas/coil.ts';
 import { parseDriverProfile, type DriverProfile } from '../schemas/driver.ts';
 
@@ -20,14 +21,8 @@ export interface LiveFigures {
   driverProblem: FieldProblem | null;
 }
 
-/** The drive figures the coil model takes from a driver. */
-export function driveContextOf(driver: DriverProfile): CoilDriveContext {
-  return {
-    supplyVoltageV: driver.supplyVoltageV,
-    fullRailCurrentA: driver.fullRailCurrentA,
-    ...(driver.scheme === 'pulse' && driver.pulse ? { pulseOnTimeS: driver.pulse.maxOnTimeS } : {}),
-  };
-}
+/** The drive figures the coil model takes from a driver: the same as the server's (drive-context.ts). */
+export const driveContextOf: (driver: DriverProfile) => CoilDriveContext = coilDriveContext;
 
 const problemOf = (e: unknown): FieldProblem => {
   if (e instanceof InputError) return { field: e.field ?? '', message: e.message };
