@@ -7,6 +7,7 @@
 import type { WelchSpectrum } from '../dsp/welch.ts';
 import type { CoilAtResonance, DeviceTraces, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import { ThermalNetwork } from '../physics/thermal/network.ts';
+import { deviceSwitching, tooSlowLabel } from '../physics/driver/transition.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
 import { powerToDb } from '../units.ts';
 import { type Advice, adviseGain } from './advise.ts';
@@ -30,6 +31,11 @@ export interface DeviceFigures {
   limitC: number;
   timeAboveWarnS: number;
   runawayAtS: number | null;
+  /** Switching speed (shared/physics/driver/transition.ts): the frequency it switches at (null: a pass device), t_r + t_f + t_s, their share of each cycle, and whether it is past the limit. */
+  switchingHz: number | null;
+  transitionTimeS: number;
+  transitionShare: number | null;
+  tooSlow: boolean;
 }
 
 export interface BudgetCurve {
@@ -70,7 +76,7 @@ export interface PlanReport {
   gainConvention: string;
   settings: PlanSettings;
   advisedGainDb: number | null;
-  binding: { limit: LimitCheck['limit']; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit'] } | null;
+  binding: { limit: LimitCheck['limit']; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit']; frequencyHz?: number } | null;
   unsafeOnSilence: boolean;
   evaluatedGainDb: number;
   devices: DeviceFigures[];
@@ -189,6 +195,7 @@ export function planClipReport(
   const sim = evaluation.sim;
   const devices: DeviceFigures[] = sim.devices.map((d) => {
     const p = driver.devices.find((x) => x.role === d.role)!;
+    const sw = deviceSwitching(driver, d.role, coil.resonanceHz);
     return {
       role: d.role,
       count: d.count,
@@ -199,6 +206,10 @@ export function planClipReport(
       limitC: p.tjMaxC - settings.marginK,
       timeAboveWarnS: d.timeAboveWarnS,
       runawayAtS: d.runaway?.atS ?? null,
+      switchingHz: sw.switchingHz,
+      transitionTimeS: sw.transitionTimeS,
+      transitionShare: sw.transitionShare,
+      tooSlow: sw.tooSlow,
     };
   });
 
@@ -231,7 +242,7 @@ export function planClipReport(
     gainConvention: GAIN_CONVENTION,
     settings,
     advisedGainDb: advice.advisedGainDb,
-    binding: b ? { limit: b.limit, role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit } : null,
+    binding: b ? { limit: b.limit, role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit, ...(b.frequencyHz !== undefined ? { frequencyHz: b.frequencyHz } : {}) } : null,
     unsafeOnSilence: advice.unsafeOnSilence,
     evaluatedGainDb,
     devices,
@@ -248,7 +259,9 @@ export function planClipReport(
     warnings: [...sim.warnings],
     searchEvaluations: advice.evaluations,
   };
-  if (advice.unsafeOnSilence) {
+  if (b && b.limit === 'switching-speed' && !b.ok) {
+    report.warnings.unshift(`No gain is safe: ${tooSlowLabel({ role: b.role ?? 'bridge', switchingHz: b.frequencyHz ?? null })} (see below); no gain changes that.`);
+  } else if (advice.unsafeOnSilence) {
     report.warnings.unshift('No gain is safe: a device exceeds its limit even on silence. Improve the cooling, lower the supply, or change the scheme before playing anything.');
   } else if (advice.advisedGainDb === null) {
     report.warnings.unshift(`No gain down to ${-60} dB keeps every limit; the clip cannot be played safely on this driver as it stands.`);

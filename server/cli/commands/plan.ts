@@ -5,7 +5,8 @@ import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.t
 import type { PlanReport } from '../../../shared/plan/report.ts';
 import { type SetResult, planSet } from '../../../shared/plan/set.ts';
 import { traceCsv } from '../../../shared/plan/trace.ts';
-import type { DriverProfile } from '../../../shared/schemas/driver.ts';
+import type { DeviceRole, DriverProfile } from '../../../shared/schemas/driver.ts';
+import { tooSlowLabel } from '../../../shared/physics/driver/transition.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
 import { jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
@@ -26,7 +27,11 @@ const USAGE =
 const f1 = (x: number) => x.toFixed(1);
 const pct = (x: number) => `${(x * 100).toFixed(3)} %`;
 
-function limitText(l: { limit: string; role: string | null; value: number; allowed: number; unit: string }): string {
+function limitText(l: { limit: string; role: string | null; value: number; allowed: number; unit: string; frequencyHz?: number }): string {
+  if (l.limit === 'switching-speed' && l.role && l.frequencyHz !== undefined) {
+    const head = l.value > l.allowed ? tooSlowLabel({ role: l.role as DeviceRole, switchingHz: l.frequencyHz }) : `switching speed (${l.role}) at ${formatEng(l.frequencyHz, 'Hz')}`;
+    return `${head}: transitions ${(l.value * 100).toFixed(1)} % of each cycle (at most ${(l.allowed * 100).toFixed(0)} %)`;
+  }
   const who = l.role ? ` (${l.role})` : '';
   const v = l.unit === 'C' ? `${f1(l.value)} °C of ${f1(l.allowed)} °C` : l.unit === 'A' ? `${l.value.toFixed(2)} A of ${l.allowed.toFixed(2)} A` : `${pct(l.value)} of ${pct(l.allowed)}`;
   return `${l.limit}${who}: ${v}`;
@@ -47,11 +52,11 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
   }
   out.push(`evaluated at ${Number.isFinite(r.evaluatedGainDb) ? r.evaluatedGainDb.toFixed(1) : '-inf'} dB:`);
   for (const d of r.devices) {
-    out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
+    out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.transitionShare !== null ? `  transitions ${(d.transitionShare * 100).toFixed(1)} % of each cycle${d.tooSlow ? ' (TOO SLOW)' : ''}` : ''}${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
   }
   out.push(`  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (1 ms mean; limit ${r.supply.limitA} A), mean ${r.supply.meanCurrentA.toFixed(2)} A`);
   out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
-  if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}`);
+  if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}, dropped below the ${formatEng(r.pulses.minOnTimeS, 's')} minimum on-time ${r.pulses.minOnTimeDropped}`);
   out.push('headroom of every limit at that gain:');
   for (const l of r.limits) out.push(`  ${l.ok ? 'ok  ' : 'FAIL'} ${limitText(l)}`);
   for (const b of r.budget) {
