@@ -15,6 +15,7 @@ import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './d
 import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
 import { pulsesAtGain } from './pulse-train.ts';
+import { type IdleFigures, idleFigures, idleWarning } from './idle.ts';
 import { simulateSteady } from './steady.ts';
 
 export const GAIN_CONVENTION =
@@ -95,6 +96,8 @@ export interface PlanReport {
   modulationCornerHz: number;
   warnings: string[];
   searchEvaluations: number;
+  /** Steady idle (supply on, no music) per device of a rail scheme (./idle.ts); [] for the pulse scheme. */
+  idle: IdleFigures[];
 }
 
 /** Device losses in full operation, W, per device in profile order (module comment of BudgetCurve). */
@@ -258,7 +261,12 @@ export function planClipReport(
     modulationCornerHz: coil.modulationCornerHz,
     warnings: [...sim.warnings],
     searchEvaluations: advice.evaluations,
+    idle: idleFigures(driver, coil, settings),
   };
+  for (const f of report.idle) {
+    const w = idleWarning(f);
+    if (w) report.warnings.push(w);
+  }
   if (b && b.limit === 'switching-speed' && !b.ok) {
     report.warnings.unshift(`No gain is safe: ${tooSlowLabel({ role: b.role ?? 'bridge', switchingHz: b.frequencyHz ?? null })} (see below); no gain changes that.`);
   } else if (advice.unsafeOnSilence) {

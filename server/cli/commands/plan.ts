@@ -54,6 +54,9 @@ export function formatPlan(r: PlanReport, coil: CoilReport, driver: DriverProfil
   for (const d of r.devices) {
     out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.transitionShare !== null ? `  transitions ${(d.transitionShare * 100).toFixed(1)} % of each cycle${d.tooSlow ? ' (TOO SLOW)' : ''}` : ''}${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
   }
+  for (const f of r.idle) {
+    out.push(`  idle      ${f.role}: settles at ${Number.isFinite(f.steadyJunctionC) ? `${f.steadyJunctionC.toFixed(1)} °C` : 'runaway'} (supply on, no music, rail ${f.railV.toFixed(1)} V, ${f.lossW.toFixed(2)} W; limit ${f1(f.limitC)})${f.reachesLimitAfterS !== null ? `, at its limit after ${f.reachesLimitAfterS.toFixed(0)} s` : ''}`);
+  }
   out.push(`  supply    peak ${r.supply.peakCurrentA.toFixed(2)} A (1 ms mean; limit ${r.supply.limitA} A), mean ${r.supply.meanCurrentA.toFixed(2)} A`);
   out.push(`  over-modulation ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
   if (r.pulses) out.push(`  pulses ${r.pulses.count}: on-time clamped ${r.pulses.onTimeClamped}, duty clamped ${r.pulses.dutyClamped}, dropped for off-time ${r.pulses.offTimeDropped}, dropped below the ${formatEng(r.pulses.minOnTimeS, 's')} minimum on-time ${r.pulses.minOnTimeDropped}`);
