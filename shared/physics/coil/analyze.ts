@@ -14,6 +14,7 @@ import {
   medhurstTableCovers,
   radiotronSelfCapacitanceF,
 } from './self-capacitance.ts';
+import { type TankReport, tankReport } from './tank.ts';
 import { sphereCapacitanceF, thinRingCapacitanceF, torusCapacitanceF } from './top-load.ts';
 import {
   AIR_BREAKDOWN_V_PER_M,
@@ -120,6 +121,8 @@ export interface CoilReport {
   };
   /** safetyFactor × max(breakdownGapM, arcReachM); null without drive figures. */
   keepOutM: number | null;
+  /** The primary as a resonant tank (./tank.ts): tuning capacitance and the rest; null unless the profile marks it. */
+  tank: TankReport | null;
   cautions: string[];
   notes: string[];
 }
@@ -272,6 +275,7 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
       basis: `Upper bound: the energy of one longest on-time at full rail power (V·I·t_on), transferred losslessly to the secondary's total capacitance, V = √(2E/C); breakdown gap at ${AIR_BREAKDOWN_V_PER_M / 1e6} MV/m (dry air, uniform field); arc reach by the builders' rule 1.7 in·√W for spark-gap coils (an extrapolation here). Real arcs can reach farther.`,
     },
     keepOutM,
+    tank: tankReport(profile, f0, L1, couplingCoefficient(M, L1, L2)),
     cautions: [...COIL_CAUTIONS],
     notes,
   };
