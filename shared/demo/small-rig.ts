@@ -6,17 +6,18 @@
  * a 24 V supply whose gate takes the music (`rail-linear`). The bipolar switch stands in free air,
  * with no heat sink; the pass MOSFET has a small clip-on sink.
  *
- * The figures are chosen so that the switch is fast enough for this coil (transition share about
- * 0.16 at its ≈ 0.5 MHz resonance, below the 0.2 limit) but only just: its transitions dominate its
- * loss, and in free air its junction temperature is what limits the gain of the demo clips.
+ * The figures are chosen so that the switch is fast enough for this coil (transition share 0.158 at
+ * its 480 kHz resonance, below the 0.2 limit) but only just: its transitions dominate its
+ * loss, and in free air its junction temperature is what limits the gain of the demo clip harbour-lights.
  */
 import type { CoilProfile } from '../schemas/coil.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
 
 /**
  * Small coil: 50 mm former, 160 mm of 0.16 mm wire (1000 turns), 80 mm sphere, 5-turn primary;
- * computed resonance ≈ 490 kHz. The loaded Q of 70 stands for a bench ring-down measurement (the
- * computed Q is an upper bound several times higher).
+ * computed resonance ≈ 490 kHz. The measured figures stand for a bench ring-down: resonance 480 kHz
+ * (a little below the computed one, as mounted coils are) and a loaded Q of 70 (the computed Q is an
+ * upper bound several times higher).
  */
 export const DEMO_SMALL_COIL: CoilProfile = {
   name: 'thimble',
@@ -24,12 +25,15 @@ export const DEMO_SMALL_COIL: CoilProfile = {
   topLoad: { shape: 'sphere', diameterM: 0.08 },
   extraCapacitanceF: 0,
   primary: { turns: 5, diameterM: 0.07, windingLengthM: 0.015, offsetM: 0 },
-  measured: { resonanceHz: null, qualityFactor: 70 },
+  measured: { resonanceHz: 480_000, qualityFactor: 70 },
 };
 
 /**
- * Single-bipolar driver with a series MOSFET modulator: 24 V supply, 1.08 A at the full rail. At
- * silence the rail idles at 12 V and the pass MOSFET dissipates g·V_s²/4 = 6.48 W on its sink.
+ * Single-bipolar driver with a series MOSFET modulator: 24 V supply, 0.97 A at the full rail. At
+ * silence the rail idles at 12 V and the pass MOSFET dissipates g·V_s²/4 = 5.82 W on its sink; the
+ * bipolar switch, idling, would settle near 140 °C: safe below its 150 °C maximum, but above the
+ * plan's 125 °C limit, which it reaches after about half a minute of idling from cold (the plan says
+ * so).
  *
  * @example simulateRail(DEMO_SMALL_DRIVER, coil, rail)
  */
@@ -38,7 +42,7 @@ export const DEMO_SMALL_DRIVER: DriverProfile = {
   notes: 'Invented demo rig: one bipolar switch in free air, fed back from the coil; series MOSFET on the rail takes the music.',
   topology: 'single-switch',
   supplyVoltageV: 24,
-  fullRailCurrentA: 1.08,
+  fullRailCurrentA: 0.97,
   supplyCurrentLimitA: 2,
   ambientC: 25,
   scheme: 'rail-linear',
@@ -65,7 +69,7 @@ export const DEMO_SMALL_DRIVER: DriverProfile = {
         ],
         caseToSinkKPerW: 0,
         sinkToAmbientKPerW: 70.8,
-        sinkHeatCapacityJPerK: 0.3,
+        sinkHeatCapacityJPerK: 0.21,
       },
     },
     {
