@@ -61,6 +61,7 @@ const LIMIT_WORDS: Record<LimitName, string> = {
   'supply-current': 'supply current',
   'on-time': 'on-time',
   duty: 'duty',
+  'switching-speed': 'switching speed',
 };
 
 /** "junction temperature (pass)", "over-modulation", … */

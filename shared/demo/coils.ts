@@ -1,9 +1,11 @@
 /**
- * Invented demo coil profiles (no real product): a desk-size coil, a small one and a larger one.
+ * Invented demo coil profiles (no real product): a desk-size coil, a small one, a larger one, and
+ * the small single-transistor rig's coil.
  * Each is a valid CoilProfile (checked in test/shared/physics/coil/demo-coils.test.ts) and runs
  * with `coilcue coil --demo <name>`.
  */
 import type { CoilProfile } from '../schemas/coil.ts';
+import { DEMO_SMALL_COIL } from './small-rig.ts';
 
 /** Demo coils by name. Dimensions SI; wire diameters are copper diameters. */
 export const DEMO_COILS: Readonly<Record<string, CoilProfile>> = {
@@ -34,7 +36,9 @@ export const DEMO_COILS: Readonly<Record<string, CoilProfile>> = {
     primary: { turns: 6, diameterM: 0.15, windingLengthM: 0.03, offsetM: 0.01 },
     measured: { resonanceHz: null, qualityFactor: null },
   },
+  /** The small rig's coil (./small-rig.ts): 50 mm former, 1000 turns, 80 mm sphere, a measured Q. */
+  thimble: DEMO_SMALL_COIL,
 };
 
-/** Names of the demo coils, in a fixed order. */
+/** Names of the demo coils, in a fixed order (the small rig's coil last). */
 export const DEMO_COIL_NAMES: readonly string[] = Object.keys(DEMO_COILS);

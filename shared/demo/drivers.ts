@@ -4,6 +4,7 @@
  * entries are per switch (see shared/schemas/driver.ts).
  */
 import type { DriverProfile } from '../schemas/driver.ts';
+import { DEMO_SMALL_DRIVER } from './small-rig.ts';
 
 /**
  * Rail-linear demo: a 48 V half-bridge whose rail is set by a linear pass device. At silence the
@@ -168,5 +169,10 @@ export const DEMO_DRIVER_PULSE: DriverProfile = {
   ],
 };
 
-/** All demo driver profiles, one per scheme. */
-export const DEMO_DRIVERS: readonly DriverProfile[] = [DEMO_DRIVER_LINEAR, DEMO_DRIVER_BUCK, DEMO_DRIVER_PULSE];
+/**
+ * All demo driver profiles: one per scheme for the desk-size coil, then the small rig's single
+ * bipolar driver (./small-rig.ts, planned on its own coil `thimble`).
+ */
+export const DEMO_DRIVERS: readonly DriverProfile[] = [DEMO_DRIVER_LINEAR, DEMO_DRIVER_BUCK, DEMO_DRIVER_PULSE, DEMO_SMALL_DRIVER];
+
+export { DEMO_SMALL_DRIVER };

@@ -3,18 +3,13 @@
  * binding limit as a sentence, and the gain slider's range. Pure; the web client draws these.
  */
 import type { LimitCheck, LimitName } from '../plan/evaluate.ts';
+import { LIMIT_LABELS } from '../plan/limit-labels.ts';
 import type { PlanReport } from '../plan/report.ts';
 import { MAX_GAIN_DB, MIN_GAIN_DB } from '../plan/advise.ts';
 import { formatClock } from './format.ts';
 
-/** Plain names of the planner's limits. */
-export const LIMIT_WORDS: Record<LimitName, string> = {
-  'junction-temperature': 'junction temperature',
-  'over-modulation': 'over-modulation (rail past its range)',
-  'supply-current': 'supply current',
-  'on-time': 'pulse on-time',
-  duty: 'duty cycle',
-};
+/** Plain names of the planner's limits: the planner's own labels, so the page and the command line say the same. */
+export const LIMIT_WORDS: Record<LimitName, string> = LIMIT_LABELS;
 
 const ROLE_WORDS: Record<string, string> = { bridge: 'bridge switches', pass: 'pass transistor', modulator: 'rail modulator switch' };
 

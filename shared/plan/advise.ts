@@ -79,7 +79,7 @@ export function adviseGain(
   // fails whatever the temperatures. This is exact: no monotonicity is assumed.
   type Probe = { gainDb: number; ok: boolean; e: Evaluation | null };
   const probe = (db: number): Probe => {
-    if (pulseLimitsFail(clip, driver, db, settings, scratch)) return { gainDb: db, ok: false, e: null };
+    if (pulseLimitsFail(clip, coil, driver, db, settings, scratch)) return { gainDb: db, ok: false, e: null };
     const e = evalAt(db);
     return { gainDb: db, ok: e.ok, e };
   };

@@ -15,18 +15,33 @@
  * - supply-current: highest frame-mean supply current (1 ms frames; pulse current in the pulse
  *   scheme) ≤ the supply's current limit;
  * - on-time (pulse scheme): share of pulses whose demanded on-time exceeds the maximum ≤ allowed share;
- * - duty (pulse scheme): share of pulses shortened by the duty limit ≤ allowed share.
+ * - duty (pulse scheme): share of pulses shortened by the duty limit ≤ allowed share;
+ * - switching-speed, per switching device (bridge at the coil's resonance, modulator at its PWM
+ *   frequency): transition share (t_r + t_f + t_s)·f ≤ TRANSITION_SHARE_LIMIT
+ *   (shared/physics/driver/transition.ts). It does not depend on the gain, so a device past it fails
+ *   every gain and, when it fails, it is the worst limit: the advice reads "bridge switch: too slow
+ *   for 3.1 MHz".
+ * Pulses shorter than the minimum on-time (the profile's pulse.minOnTimeS, default 3 RF cycles at
+ * f0: shared/plan/pulse-train.ts pulseLimitsFor) are dropped and counted; when more than
+ * SHORT_PULSE_WARN_SHARE of the clip's pulses are, the evaluation warns that the clip depends on them.
  */
 import { type FrameStats, railFrameMoments } from '../dsp/frame-stats.ts';
 import { type MagnitudeHistogram, fractionAbove } from '../dsp/histogram.ts';
 import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
 import { simulateRail } from '../physics/driver/simulate-rail.ts';
 import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
-import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
+import { deviceSwitching } from '../physics/driver/transition.ts';
+import { ROLES_FOR_SCHEME, type DeviceRole, type DriverProfile } from '../schemas/driver.ts';
 import { dbToAmp } from '../units.ts';
-import { type PulseEvents, type PulseTrain, pulsesAtGain } from './pulse-train.ts';
+import { type PulseEvents, type PulseTrain, pulseLimitsFor, pulsesAtGain } from './pulse-train.ts';
 
-export type LimitName = 'junction-temperature' | 'over-modulation' | 'supply-current' | 'on-time' | 'duty';
+export type LimitName = 'junction-temperature' | 'over-modulation' | 'supply-current' | 'on-time' | 'duty' | 'switching-speed';
+
+/**
+ * Share of a clip's pulses dropped for being shorter than the minimum on-time above which the
+ * evaluation warns that the clip depends on them (our convention: 1 % of the pulses).
+ */
+export const SHORT_PULSE_WARN_SHARE = 0.01;
 
 /** What the planner needs of a clip: the analysis's reductions of the modulation source. */
 export interface PlanClip {
@@ -70,6 +85,8 @@ export interface LimitCheck {
   ok: boolean;
   /** When the limit is closest to (or past) its edge, s; null when it never comes near. */
   atS: number | null;
+  /** switching-speed only: the frequency the device switches at, Hz. */
+  frequencyHz?: number;
 }
 
 export interface Evaluation {
@@ -77,7 +94,7 @@ export interface Evaluation {
   sim: DriverSimulation;
   overModulationFraction: number;
   overModulationTimeS: number;
-  pulses: (Omit<PulseTrain, 'startS' | 'onS'> & { onTimeShare: number; dutyShare: number }) | null;
+  pulses: (Omit<PulseTrain, 'startS' | 'onS'> & { onTimeShare: number; dutyShare: number; minOnTimeShare: number }) | null;
   limits: LimitCheck[];
   ok: boolean;
   /** The first failing limit (most over its edge, relative), or null when all hold. */
@@ -122,22 +139,56 @@ export function railAtGain(frames: FrameStats, gain: number, supplyV: number, ou
  * True when the pulse limits alone (shares of pulses clamped by on-time or duty) fail at `gainDb`:
  * the cheap part of an evaluation, no thermal simulation. Always false for rail schemes.
  */
-export function pulseLimitsFail(clip: PlanClip, driver: DriverProfile, gainDb: number, settings: PlanSettings, scratch: EvalScratch): boolean {
+export function pulseLimitsFail(
+  clip: PlanClip,
+  coil: CoilAtResonance,
+  driver: DriverProfile,
+  gainDb: number,
+  settings: PlanSettings,
+  scratch: EvalScratch,
+): boolean {
   if (driver.scheme !== 'pulse' || !clip.pulseEvents || !driver.pulse) return false;
-  const train = pulsesAtGain(clip.pulseEvents, dbToAmp(gainDb), driver.pulse, scratch.train);
+  const train = pulsesAtGain(clip.pulseEvents, dbToAmp(gainDb), pulseLimitsFor(driver.pulse, coil.resonanceHz), scratch.train);
   scratch.train = train;
   const { onTimeShare, dutyShare } = pulseShares(train);
   return onTimeShare > settings.allowedShare || dutyShare > settings.allowedShare;
 }
 
-/** Shares (0…1) of the considered pulse events clamped by the on-time and by the duty limit. */
-function pulseShares(train: PulseTrain): { onTimeShare: number; dutyShare: number } {
+/** Shares (0…1) of the considered pulse events clamped by the on-time and by the duty limit, and dropped as too short. */
+function pulseShares(train: PulseTrain): { onTimeShare: number; dutyShare: number; minOnTimeShare: number } {
   const denom = Math.max(1, train.events);
-  return { onTimeShare: train.onTimeClamped / denom, dutyShare: train.dutyClamped / denom };
+  return { onTimeShare: train.onTimeClamped / denom, dutyShare: train.dutyClamped / denom, minOnTimeShare: train.minOnTimeDropped / denom };
 }
 
 function check(limit: LimitName, role: DeviceRole | null, value: number, allowed: number, unit: LimitCheck['unit'], atS: number | null): LimitCheck {
   return { limit, role, value, allowed, unit, headroom: allowed - value, ok: value <= allowed, atS };
+}
+
+/**
+ * The switching-speed check of every device the scheme uses that switches (bridge, modulator), in
+ * the order of ROLES_FOR_SCHEME.
+ */
+export function switchingSpeedChecks(driver: DriverProfile, resonanceHz: number): LimitCheck[] {
+  const out: LimitCheck[] = [];
+  for (const role of ROLES_FOR_SCHEME[driver.scheme]) {
+    if (!driver.devices.some((d) => d.role === role)) continue;
+    const s = deviceSwitching(driver, role, resonanceHz);
+    if (s.switchingHz === null || s.transitionShare === null) continue;
+    out.push({ ...check('switching-speed', role, s.transitionShare, s.limitShare, 'share', null), frequencyHz: s.switchingHz });
+  }
+  return out;
+}
+
+/** The warning for a clip that depends on pulses shorter than the minimum on-time, or '' when it does not. */
+function shortPulseWarning(train: PulseTrain, share: number, resonanceHz: number): string {
+  if (!(share > SHORT_PULSE_WARN_SHARE)) return '';
+  const us = (train.minOnTimeS * 1e6).toFixed(1);
+  const cycles = (train.minOnTimeS * resonanceHz).toFixed(1);
+  return (
+    `pulses: ${train.minOnTimeDropped} of ${train.events} pulses (${(share * 100).toFixed(1)} %) are shorter than the ${us} µs minimum on-time ` +
+    `(${cycles} RF cycles at ${(resonanceHz / 1e3).toFixed(0)} kHz) and were dropped: the coil cannot ring up in them, so the clip's quiet ` +
+    'passages will be missing from the arcs. A higher gain lengthens them; lower pulse.minOnTimeS only if the coil is known to ring up faster.'
+  );
 }
 
 /**
@@ -162,11 +213,13 @@ export function evaluateAtGain(
   if (driver.scheme === 'pulse') {
     if (!clip.pulseEvents) throw new RangeError('evaluateAtGain: the pulse scheme needs clip.pulseEvents');
     if (!driver.pulse) throw new RangeError('evaluateAtGain: the pulse scheme needs driver.pulse limits');
-    const train = pulsesAtGain(clip.pulseEvents, g, driver.pulse, scratch.train);
+    const train = pulsesAtGain(clip.pulseEvents, g, pulseLimitsFor(driver.pulse, coil.resonanceHz), scratch.train);
     scratch.train = train;
     sim = simulatePulses(driver, coil, { startS: train.startS.subarray(0, train.count), onS: train.onS.subarray(0, train.count) }, clip.durationS, simOpts);
     const { startS: _s, onS: _o, ...counts } = train;
     pulses = { ...counts, ...pulseShares(train) };
+    const short = shortPulseWarning(train, pulses.minOnTimeShare, coil.resonanceHz);
+    if (short) sim.warnings.push(short);
   } else {
     const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, scratch);
     overModAtS = rail.firstOverModS;
@@ -193,10 +246,14 @@ export function evaluateAtGain(
     limits.push(check('on-time', null, pulses.onTimeShare, settings.allowedShare, 'share', null));
     limits.push(check('duty', null, pulses.dutyShare, settings.allowedShare, 'share', null));
   }
+  limits.push(...switchingSpeedChecks(driver, coil.resonanceHz));
   const failing = limits.filter((l) => !l.ok);
-  // Most over its edge relative to the allowed value (shares against their allowance, °C and A against theirs).
+  // A device too slow for its switching frequency fails at every gain: it is the worst limit. Otherwise
+  // the one most over its edge relative to the allowed value (shares against their allowance, °C and A against theirs).
   const rel = (l: LimitCheck) => (l.value - l.allowed) / Math.max(Math.abs(l.allowed), 1e-9);
-  const worst = failing.length ? failing.reduce((a, b) => (rel(b) > rel(a) ? b : a)) : null;
+  const slow = failing.filter((l) => l.limit === 'switching-speed');
+  const pool = slow.length ? slow : failing;
+  const worst = pool.length ? pool.reduce((a, b) => (rel(b) > rel(a) ? b : a)) : null;
   return {
     gainDb,
     sim,

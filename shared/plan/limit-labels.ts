@@ -8,6 +8,7 @@
  * time") in text.
  */
 import type { DeviceRole } from '../schemas/driver.ts';
+import { tooSlowLabel } from '../physics/driver/transition.ts';
 import type { LimitCheck, LimitName } from './evaluate.ts';
 
 export const LIMIT_LABELS: Record<LimitName, string> = {
@@ -16,6 +17,7 @@ export const LIMIT_LABELS: Record<LimitName, string> = {
   'supply-current': 'supply current',
   'on-time': 'pulses cut to the longest on-time',
   duty: 'pulses clamped by the duty limit',
+  'switching-speed': 'switching speed',
 };
 
 /** What a share limit is a share of. */
@@ -25,10 +27,20 @@ export const SHARE_BASE: Partial<Record<LimitName, string>> = {
   duty: 'of pulses',
 };
 
-/** "junction temperature (pass)", "pulses clamped by the duty limit", … */
-export function limitLabel(l: { limit: LimitName; role: DeviceRole | null }): string {
+/**
+ * "junction temperature (pass)", "pulses clamped by the duty limit", … A switching-speed limit
+ * names its frequency, and past its edge reads as the advice words it: "bridge switch: too slow
+ * for 3.1 MHz" (shared/physics/driver/transition.ts).
+ */
+export function limitLabel(l: { limit: LimitName; role: DeviceRole | null; value?: number; allowed?: number; frequencyHz?: number }): string {
+  if (l.limit === 'switching-speed' && l.role && l.frequencyHz !== undefined) {
+    if (l.value !== undefined && l.allowed !== undefined && l.value > l.allowed) return tooSlowLabel({ role: l.role, switchingHz: l.frequencyHz });
+    return `switching speed (${l.role}) at ${formatHz(l.frequencyHz)}`;
+  }
   return `${LIMIT_LABELS[l.limit] ?? l.limit}${l.role ? ` (${l.role})` : ''}`;
 }
+
+const formatHz = (hz: number): string => (hz >= 1e6 ? `${(hz / 1e6).toPrecision(3)} MHz` : `${(hz / 1e3).toPrecision(3)} kHz`);
 
 /** A value in the limit's unit as a person reads it: "71.3 °C", "2.40 A", "0.123 % of pulses". */
 export function limitValueText(value: number, unit: LimitCheck['unit'], limit?: LimitName): string {
@@ -40,7 +52,10 @@ export function limitValueText(value: number, unit: LimitCheck['unit'], limit?: 
 }
 
 /** "pulses clamped by the duty limit: 0.123 % of pulses, allowed 0.100 %". */
-export function limitText(l: { limit: LimitName; role: DeviceRole | null; value: number; allowed: number; unit: LimitCheck['unit'] }): string {
+export function limitText(l: { limit: LimitName; role: DeviceRole | null; value: number; allowed: number; unit: LimitCheck['unit']; frequencyHz?: number }): string {
+  if (l.limit === 'switching-speed') {
+    return `${limitLabel(l)}: transitions ${(l.value * 100).toFixed(1)} % of each cycle, allowed ${(l.allowed * 100).toFixed(0)} %`;
+  }
   const allowed = limitValueText(l.allowed, l.unit).replace(/ of .*$/, '');
   return `${limitLabel(l)}: ${limitValueText(l.value, l.unit, l.limit)}, allowed ${allowed}`;
 }

@@ -13,7 +13,12 @@
  * - min off-time: a pulse that would start less than minOffTimeS after the previous one ended is
  *   dropped (counted as `offTimeDropped`);
  * - max duty: on-time ≤ maxDuty · (start − previous start), the duty of one pulse period
- *   (counted as `dutyClamped`). The first pulse has no period yet and is bounded by max on-time alone.
+ *   (counted as `dutyClamped`). The first pulse has no period yet and is bounded by max on-time alone;
+ * - min on-time: a pulse whose on-time, after the limits above, is shorter than minOnTimeS is
+ *   dropped (counted as `minOnTimeDropped`): the coil cannot ring up in it, so it would make
+ *   switching loss and no arc. Default {@link DEFAULT_MIN_ON_RF_CYCLES} RF cycles at the coil's
+ *   resonance ({@link pulseLimitsFor}); a dropped pulse does not count as the previous pulse for
+ *   the off-time and duty limits of the next.
  * Pulse interrupters in the trade limit these same three figures (common practice).
  */
 
@@ -33,6 +38,28 @@ export interface PulseLimits {
   maxOnTimeS: number;
   minOffTimeS: number;
   maxDuty: number;
+  /** Shortest pulse sent, s; absent: no minimum here (see {@link pulseLimitsFor} for the coil's default). */
+  minOnTimeS?: number;
+}
+
+/**
+ * Default minimum on-time in RF cycles of the coil's resonance. A pulse of n cycles lifts the tank's
+ * envelope to 1 − e^(−π·n/Q) of its steady amplitude (ring-up time constant Q/(π·f0), see
+ * shared/physics/driver/currents.ts ringUpTimeS): three cycles give 15–38 % of the amplitude for the
+ * loaded Q of small coils (25–60); fewer make little more than switching loss (common practice; the
+ * figure is ours).
+ */
+export const DEFAULT_MIN_ON_RF_CYCLES = 3;
+
+/**
+ * The profile's pulse limits with the minimum on-time filled in: `minOnTimeS` when the profile gives
+ * it, else {@link DEFAULT_MIN_ON_RF_CYCLES}/f0.
+ *
+ * @example pulseLimitsFor({ maxOnTimeS: 1.5e-4, minOffTimeS: 1e-3, maxDuty: 0.08 }, 318e3).minOnTimeS // → 9.43 µs
+ */
+export function pulseLimitsFor(limits: PulseLimits, resonanceHz: number): PulseLimits & { minOnTimeS: number } {
+  if (!(resonanceHz > 0)) throw new RangeError(`pulseLimitsFor: resonanceHz must be > 0, got ${resonanceHz}`);
+  return { ...limits, minOnTimeS: limits.minOnTimeS ?? DEFAULT_MIN_ON_RF_CYCLES / resonanceHz };
 }
 
 /** Pulses for one gain. */
@@ -46,6 +73,10 @@ export interface PulseTrain {
   offTimeDropped: number;
   /** Pulses shortened to respect maxDuty. */
   dutyClamped: number;
+  /** Pulses dropped because their on-time was below minOnTimeS. */
+  minOnTimeDropped: number;
+  /** The minimum on-time applied, s (0: none). */
+  minOnTimeS: number;
   /** Σ on-time, s. */
   totalOnS: number;
   /** Events considered (non-zero demanded on-time). */
@@ -152,6 +183,8 @@ export function pulsesAtGain(events: PulseEvents, gain: number, limits: PulseLim
   const startS = out && out.startS.length >= n ? out.startS : new Float64Array(n);
   const onS = out && out.onS.length >= n ? out.onS : new Float64Array(n);
   const { maxOnTimeS, minOffTimeS, maxDuty } = limits;
+  const minOnTimeS = limits.minOnTimeS ?? 0;
+  let minOnTimeDropped = 0;
   let count = 0;
   let onTimeClamped = 0;
   let offTimeDropped = 0;
@@ -181,6 +214,10 @@ export function pulsesAtGain(events: PulseEvents, gain: number, limits: PulseLim
     // A pulse cannot run past the end of the clip.
     on = Math.min(on, Math.max(0, events.durationS - t));
     if (on <= 0) continue;
+    if (on < minOnTimeS) {
+      minOnTimeDropped++;
+      continue;
+    }
     startS[count] = t;
     onS[count] = on;
     count++;
@@ -188,5 +225,5 @@ export function pulsesAtGain(events: PulseEvents, gain: number, limits: PulseLim
     prevStart = t;
     prevEnd = t + on;
   }
-  return { startS, onS, count, onTimeClamped, offTimeDropped, dutyClamped, totalOnS, events: considered };
+  return { startS, onS, count, onTimeClamped, offTimeDropped, dutyClamped, minOnTimeDropped, minOnTimeS, totalOnS, events: considered };
 }

@@ -10,6 +10,7 @@ import { frameLossAtW } from '../physics/driver/device-run.ts';
 import { bridgeLossParts, totalLossW } from '../physics/driver/losses.ts';
 import { frameLossModel } from '../physics/driver/simulate-rail.ts';
 import { ThermalNetwork } from '../physics/thermal/network.ts';
+import { deviceSwitching, tooSlowLabel } from '../physics/driver/transition.ts';
 import type { DeviceRole, DriverDevice, DriverProfile } from '../schemas/driver.ts';
 import { powerToDb } from '../units.ts';
 import { type Advice, adviseGain } from './advise.ts';
@@ -20,6 +21,8 @@ import { pulsesAtGain } from './pulse-train.ts';
 import { type DutyCycleFigures, dutyCycleFigures } from './duty-cycle.ts';
 import { limitLabel } from './limit-labels.ts';
 import { type LimitingNote, limitingNote } from './quality.ts';
+import { type IdleFigures, idleFigures, idleWarning } from './idle.ts';
+import { simulateSteady } from './steady.ts';
 
 export const GAIN_CONVENTION =
   'gain 0 dB: a full-scale sample (±1.0) swings a rail scheme’s rail over its whole range (0 to the supply, around a bias at half the supply) and takes a pulse scheme’s on-time to its maximum';
@@ -35,6 +38,11 @@ export interface DeviceFigures {
   limitC: number;
   timeAboveWarnS: number;
   runawayAtS: number | null;
+  /** Switching speed (shared/physics/driver/transition.ts): the frequency it switches at (null: a pass device), t_r + t_f + t_s, their share of each cycle, and whether it is past the limit. */
+  switchingHz: number | null;
+  transitionTimeS: number;
+  transitionShare: number | null;
+  tooSlow: boolean;
 }
 
 export interface BudgetCurve {
@@ -94,7 +102,7 @@ export interface PlanReport {
   gainConvention: string;
   settings: PlanSettings;
   advisedGainDb: number | null;
-  binding: { limit: LimitCheck['limit']; label: string; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit'] } | null;
+  binding: { limit: LimitCheck['limit']; label: string; role: DeviceRole | null; atS: number | null; value: number; allowed: number; unit: LimitCheck['unit']; frequencyHz?: number } | null;
   unsafeOnSilence: boolean;
   evaluatedGainDb: number;
   devices: DeviceFigures[];
@@ -126,6 +134,8 @@ export interface PlanReport {
   modulationCornerRangeHz: CornerRangeHz;
   warnings: string[];
   searchEvaluations: number;
+  /** Steady idle (supply on, no music) per device of a rail scheme (./idle.ts); [] for the pulse scheme. */
+  idle: IdleFigures[];
 }
 
 /**
@@ -275,6 +285,7 @@ export function planClipReport(
   const sim = evaluation.sim;
   const devices: DeviceFigures[] = sim.devices.map((d) => {
     const p = driver.devices.find((x) => x.role === d.role)!;
+    const sw = deviceSwitching(driver, d.role, coil.resonanceHz);
     return {
       role: d.role,
       count: d.count,
@@ -285,6 +296,10 @@ export function planClipReport(
       limitC: p.tjMaxC - settings.marginK,
       timeAboveWarnS: d.timeAboveWarnS,
       runawayAtS: d.runaway?.atS ?? null,
+      switchingHz: sw.switchingHz,
+      transitionTimeS: sw.transitionTimeS,
+      transitionShare: sw.transitionShare,
+      tooSlow: sw.tooSlow,
     };
   });
 
@@ -320,7 +335,7 @@ export function planClipReport(
     gainConvention: GAIN_CONVENTION,
     settings,
     advisedGainDb: advice.advisedGainDb,
-    binding: b ? { limit: b.limit, label: limitLabel(b), role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit } : null,
+    binding: b ? { limit: b.limit, label: limitLabel(b), role: b.role, atS: b.atS, value: b.value, allowed: b.allowed, unit: b.unit, ...(b.frequencyHz !== undefined ? { frequencyHz: b.frequencyHz } : {}) } : null,
     unsafeOnSilence: advice.unsafeOnSilence,
     evaluatedGainDb,
     devices,
@@ -348,8 +363,15 @@ export function planClipReport(
     modulationCornerRangeHz: cornerRange,
     warnings: [...sim.warnings],
     searchEvaluations: advice.evaluations,
+    idle: idleFigures(driver, coil, settings),
   };
-  if (advice.unsafeOnSilence) {
+  for (const f of report.idle) {
+    const w = idleWarning(f);
+    if (w) report.warnings.push(w);
+  }
+  if (b && b.limit === 'switching-speed' && !b.ok) {
+    report.warnings.unshift(`No gain is safe: ${tooSlowLabel({ role: b.role ?? 'bridge', switchingHz: b.frequencyHz ?? null })} (see below); no gain changes that.`);
+  } else if (advice.unsafeOnSilence) {
     report.warnings.unshift('No gain is safe: a device exceeds its limit even on silence. Improve the cooling, lower the supply, or change the scheme before playing anything.');
   } else if (advice.advisedGainDb === null) {
     report.warnings.unshift(`No gain down to ${-60} dB keeps every limit; the clip cannot be played safely on this driver as it stands.`);

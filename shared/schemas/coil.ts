@@ -39,6 +39,37 @@ export const TopLoadSchema = Type.Union([TopLoadNoneSchema, TopLoadSphereSchema,
   description: 'top load: { "shape": "none" | "sphere" | "torus", ... }',
 });
 
+/**
+ * A primary that is itself a resonant tank (spark-gap coils, dual-resonant solid-state drivers):
+ * the capacitor fitted (or none yet), how the tank is switched and, for a spark gap, the peak of the
+ * supply that charges the capacitor.
+ */
+export const PrimaryTankSchema = Type.Object(
+  {
+    capacitanceF: Type.Union(
+      [
+        Type.Number({ minimum: 1e-12, maximum: 1e-3, description: 'capacitance fitted in the primary tank, in F (1 pF to 1 mF); null: none fitted yet' }),
+        Type.Null(),
+      ],
+      { description: 'capacitance fitted in the primary tank, in F (1 pF to 1 mF); null: none fitted yet' },
+    ),
+    switching: Type.Union([Type.Literal('spark-gap'), Type.Literal('solid-state')], {
+      description: 'how the tank is switched: "spark-gap" (a static or rotary gap fires it) or "solid-state" (a dual-resonant driver)',
+    }),
+    supplyPeakV: Type.Optional(
+      Type.Union([
+        Type.Number({
+          minimum: 1,
+          maximum: 1e6,
+          description: 'spark gap: peak voltage of the supply that charges the tank capacitor, in V (1 V to 1 MV; √2 × the transformer’s RMS output)',
+        }),
+        Type.Null(),
+      ]),
+    ),
+  },
+  { additionalProperties: false, description: 'the primary as a resonant tank' },
+);
+
 /** The primary: a short helical winding coaxial with the secondary. */
 export const PrimarySchema = Type.Object(
   {
@@ -57,6 +88,14 @@ export const PrimarySchema = Type.Object(
       maximum: 5,
       description: 'axial position of the primary centre above the bottom of the secondary winding, in m (negative: below it)',
     }),
+    leadInductanceH: Type.Optional(
+      Type.Number({
+        minimum: 0,
+        maximum: 1e-4,
+        description: 'inductance of the leads between the primary and its capacitor or driver, in H (0 to 100 µH; default 0; roughly 1 µH per metre of wire)',
+      }),
+    ),
+    tank: Type.Optional(PrimaryTankSchema),
   },
   { additionalProperties: false, description: 'primary winding' },
 );

@@ -33,10 +33,12 @@ export const DeviceThermalSchema = Type.Object(
       description: 'Junction–case transient thermal impedance as a Foster set (datasheet Zth(j-c)), 1 to 10 cells',
     }),
     caseToSinkKPerW: num('Case–sink interface resistance in K/W (0 ≤ R ≤ 100; pad or grease)', { minimum: 0, maximum: 100 }),
-    sinkToAmbientKPerW: num('Sink–ambient resistance in K/W for this switch’s own sink (0 ≤ R ≤ 1000; 0 = held at ambient)', {
-      minimum: 0,
-      maximum: 1000,
-    }),
+    sinkToAmbientKPerW: num(
+      'Sink–ambient resistance in K/W for this switch’s own sink (0 ≤ R ≤ 1000; 0 = held at ambient). A part in free air ' +
+        '(no sink): its datasheet junction–ambient resistance R_th(j-a) less the Foster sum, with caseToSinkKPerW 0 and ' +
+        'sinkHeatCapacityJPerK 0 (the whole R_th(j-a) here is a few per cent conservative)',
+      { minimum: 0, maximum: 1000 },
+    ),
     sinkHeatCapacityJPerK: num('Heat capacity of the sink in J/K (0 ≤ C ≤ 1e6; 0 = no thermal mass; aluminium ≈ 900 J/K per kg)', {
       minimum: 0,
       maximum: 1e6,
@@ -51,7 +53,9 @@ export const DriverDeviceSchema = Type.Object(
     role: Type.Union([Type.Literal('bridge'), Type.Literal('pass'), Type.Literal('modulator')], {
       description: 'bridge: the switches driving the coil; pass: linear rail regulator; modulator: buck rail switch',
     }),
-    kind: Type.Union([Type.Literal('mosfet'), Type.Literal('igbt')], { description: 'Device type' }),
+    kind: Type.Union([Type.Literal('mosfet'), Type.Literal('igbt'), Type.Literal('bjt')], {
+      description: 'Device type: mosfet, igbt, or bjt (bipolar junction transistor)',
+    }),
     rdsOnOhm: Type.Optional(
       Type.Union([
         num('MOSFET on-resistance Rds(on) at 25 °C in Ω (0 < R ≤ 100); for an IGBT an optional slope resistance', {
@@ -73,9 +77,44 @@ export const DriverDeviceSchema = Type.Object(
     ),
     vceSatV: Type.Optional(
       Type.Union([
-        num('IGBT collector–emitter saturation voltage V_CE(sat) in V (0 < V ≤ 10)', { exclusiveMinimum: 0, maximum: 10 }),
+        num('Collector–emitter saturation voltage V_CE(sat) of an IGBT or BJT in V (0 < V ≤ 10)', { exclusiveMinimum: 0, maximum: 10 }),
         Type.Null(),
       ]),
+    ),
+    vceSatAtCurrentA: Type.Optional(
+      Type.Union([
+        num('BJT: the collector current at which the datasheet states V_CE(sat), in A (0 < I ≤ 1000)', { exclusiveMinimum: 0, maximum: 1000 }),
+        Type.Null(),
+      ]),
+    ),
+    forcedGain: Type.Optional(
+      Type.Union([
+        num(
+          'BJT: forced current gain β_F = I_C/I_B that the base drive gives while on (1 ≤ β ≤ 1000; a feedback winding ' +
+            'from the coil drives the base in proportion to the collector current); give this or baseCurrentA',
+          { minimum: 1, maximum: 1000 },
+        ),
+        Type.Null(),
+      ]),
+    ),
+    baseCurrentA: Type.Optional(
+      Type.Union([
+        num('BJT: base current while on, in A, for a base drive of fixed current (0 < I ≤ 100); give this or forcedGain', {
+          exclusiveMinimum: 0,
+          maximum: 100,
+        }),
+        Type.Null(),
+      ]),
+    ),
+    vbeSatV: Type.Optional(
+      Type.Union([num('BJT: base–emitter saturation voltage V_BE(sat) in V (0.3 ≤ V ≤ 3)', { minimum: 0.3, maximum: 3 }), Type.Null()]),
+    ),
+    storageTimeS: Type.Optional(
+      num(
+        'Storage time t_s in s (0 ≤ t ≤ 1e-4): a BJT needs its datasheet t_s; for a MOSFET or IGBT the turn-off delay ' +
+          't_d(off) may be given (default 0). Counted in the transition share (t_r + t_f + t_s)·f',
+        { minimum: 0, maximum: 1e-4 },
+      ),
     ),
     riseTimeS: num('Switching rise time t_r in s (0 ≤ t ≤ 1e-5)', { minimum: 0, maximum: 1e-5 }),
     fallTimeS: num('Switching fall time t_f in s (0 ≤ t ≤ 1e-5)', { minimum: 0, maximum: 1e-5 }),
@@ -92,6 +131,13 @@ export const PulseLimitsSchema = Type.Object(
     maxOnTimeS: num('Longest allowed pulse (on-time) in s (0 < t ≤ 0.1)', { exclusiveMinimum: 0, maximum: 0.1 }),
     minOffTimeS: num('Shortest allowed gap between pulses in s (0 ≤ t ≤ 10)', { minimum: 0, maximum: 10 }),
     maxDuty: num('Highest allowed overall duty (on-time fraction, 0 < D ≤ 1)', { exclusiveMinimum: 0, maximum: 1 }),
+    minOnTimeS: Type.Optional(
+      num(
+        'Shortest pulse worth sending, in s (0 ≤ t ≤ 0.01): shorter pulses are dropped, counted and reported, since the ' +
+          'coil cannot ring up in them. Default: 3 RF cycles at the coil’s resonance',
+        { minimum: 0, maximum: 0.01 },
+      ),
+    ),
   },
   { additionalProperties: false },
 );
@@ -232,13 +278,41 @@ function rangeError(field: string, keyword: string, params: Record<string, unkno
 }
 
 /**
+ * The figures a bipolar transistor needs beyond the schema: V_CE(sat) with the collector current it
+ * is stated at, V_BE(sat), the storage time, and exactly one of the forced gain or the base current.
+ */
+function checkBjt(d: DriverDevice, at: string): void {
+  const need: [keyof DriverDevice, string][] = [
+    ['vceSatV', 'its collector–emitter saturation voltage V_CE(sat) in V'],
+    ['vceSatAtCurrentA', 'the collector current in A at which the datasheet states V_CE(sat)'],
+    ['vbeSatV', 'its base–emitter saturation voltage V_BE(sat) in V'],
+    ['storageTimeS', 'its storage time t_s in s'],
+  ];
+  for (const [key, what] of need) {
+    const v = d[key];
+    if (v === undefined || v === null) throw bad(`${at}.${key}`, `${at}.${key} is ${show(v)} but a BJT needs ${what}: add it from the datasheet`);
+  }
+  const hasGain = d.forcedGain !== undefined && d.forcedGain !== null;
+  const hasBase = d.baseCurrentA !== undefined && d.baseCurrentA !== null;
+  if (hasGain === hasBase) {
+    throw bad(
+      `${at}.forcedGain`,
+      `${at} gives ${hasGain ? 'both forcedGain and baseCurrentA' : 'neither forcedGain nor baseCurrentA'} but a BJT needs exactly one: ` +
+        'forcedGain (I_C/I_B) for a base drive that follows the collector current, baseCurrentA (A) for a fixed one',
+    );
+  }
+}
+
+/**
  * Validates a driver profile (already JSON-parsed) and returns it typed. Throws
  * `InputError('bad-profile', message, field)` naming the dotted field path (e.g.
  * `devices.0.thermal.foster`), the rule, the value given and what to do. Checks, beyond the
  * schema's types and ranges: a non-empty Foster list; `pulse` present for the pulse scheme and
  * `pwmFrequencyHz` for rail-switched; exactly one device per role, with the roles the scheme
  * needs (rail-linear: bridge + pass; rail-switched: bridge + modulator; pulse: bridge); a MOSFET
- * has `rdsOnOhm` and `rdsOnTempCoeffPerK`, an IGBT `vceSatV`; ambient below every Tj max.
+ * has `rdsOnOhm` and `rdsOnTempCoeffPerK`, an IGBT `vceSatV`, a BJT `vceSatV`, `vceSatAtCurrentA`,
+ * `vbeSatV`, `storageTimeS` and one of `forcedGain` or `baseCurrentA`; ambient below every Tj max;
+ * `pulse.minOnTimeS` at most `pulse.maxOnTimeS`.
  * A sink heat capacity of 0 is valid (a sink without thermal mass). Devices of roles the scheme
  * does not use are allowed (the simulation ignores them and says so).
  *
@@ -263,9 +337,11 @@ export function parseDriverProfile(json: unknown): DriverProfile {
             "read it from the datasheet's normalised Rds(on)-vs-Tj curve (silicon ≈ 0.007)",
         );
       }
-    } else if (d.vceSatV === undefined || d.vceSatV === null) {
-      throw bad(`${at}.vceSatV`, `${at}.vceSatV is ${show(d.vceSatV)} but an IGBT needs its collector–emitter saturation voltage in V: add it from the datasheet`);
-    }
+    } else if (d.kind === 'igbt') {
+      if (d.vceSatV === undefined || d.vceSatV === null) {
+        throw bad(`${at}.vceSatV`, `${at}.vceSatV is ${show(d.vceSatV)} but an IGBT needs its collector–emitter saturation voltage in V: add it from the datasheet`);
+      }
+    } else checkBjt(d, at);
     if (d.tjMaxC <= p.ambientC) {
       throw bad(`${at}.tjMaxC`, `${at}.tjMaxC must be above ambientC (${p.ambientC} °C), got ${d.tjMaxC} °C: check both temperatures`);
     }
@@ -274,6 +350,12 @@ export function parseDriverProfile(json: unknown): DriverProfile {
       throw bad(`${at}.role`, `${at}.role "${d.role}" repeats devices.${dup}: give one entry per role (it describes each identical switch of that role)`);
     }
   });
+  if (p.pulse?.minOnTimeS !== undefined && p.pulse.minOnTimeS > p.pulse.maxOnTimeS) {
+    throw bad(
+      'pulse.minOnTimeS',
+      `pulse.minOnTimeS (${p.pulse.minOnTimeS} s) is longer than pulse.maxOnTimeS (${p.pulse.maxOnTimeS} s), so no pulse could be sent: lower the minimum or raise the maximum`,
+    );
+  }
   if (p.scheme === 'pulse' && p.pulse === undefined) {
     throw bad('pulse', 'pulse is missing but the pulse scheme needs it: add { "maxOnTimeS", "minOffTimeS", "maxDuty" }');
   }

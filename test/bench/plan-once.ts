@@ -7,6 +7,7 @@ import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
 import { modulationSource } from '../../shared/audio/clip.ts';
 import { DEMO_COILS } from '../../shared/demo/coils.ts';
 import { DEMO_DRIVERS } from '../../shared/demo/drivers.ts';
+import { DEMO_SMALL_RIG } from '../../shared/demo/small-rig.ts';
 import { analyzeCoil } from '../../shared/physics/coil/analyze.ts';
 import { adviseGain } from '../../shared/plan/advise.ts';
 import { planSettings } from '../../shared/plan/evaluate.ts';
@@ -19,8 +20,11 @@ export async function main(): Promise<void> {
   const clip = await decodeAudioFile(process.argv[2]);
   const analysis = analyzeClip(clip);
   const source = modulationSource(clip, 'mix');
-  const coil = analyzeCoil(DEMO_COILS['desk-lantern']);
+  const desk = analyzeCoil(DEMO_COILS['desk-lantern']);
+  // The small rig's driver runs on its own coil.
+  const small = analyzeCoil(DEMO_SMALL_RIG.coil);
   const rows = DEMO_DRIVERS.map((driver) => {
+    const coil = driver === DEMO_SMALL_RIG.driver ? small : desk;
     const pc = toPlanClip('bench', analysis, source, driver);
     const settings = planSettings(driver);
     let t = performance.now();

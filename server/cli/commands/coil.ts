@@ -16,6 +16,27 @@ const USAGE = usageLine(COIL_OPTIONS);
 const pct = (x: number | null): string => (x === null ? '—' : `${x >= 0 ? '+' : ''}${x.toFixed(1)} %`);
 const num3 = (x: number | null): string => (x === null ? '—' : Math.abs(x) >= 1000 ? Math.round(x).toString() : x.toPrecision(3));
 
+/** The primary tank's lines (none unless the profile marks the primary as a tank). */
+function tankLines(r: CoilReport, row: (label: string, value: string) => string): string[] {
+  const t = r.tank;
+  if (!t) return [];
+  const lines = [
+    '',
+    `Primary tank (${t.switching})`,
+    row('tank inductance (primary + leads)', `${formatEng(t.tankInductanceH, 'H')}   [leads ${formatEng(t.leadInductanceH, 'H')}]`),
+    row('tuning capacitance 1/((2π f0)² L)', formatEng(t.tankTuningCapacitanceF, 'F')),
+    row('fitted capacitance', t.fittedCapacitanceF === null ? 'none yet' : formatEng(t.fittedCapacitanceF, 'F')),
+    row('primary resonance with it', t.primaryResonanceHz === null ? '—' : `${formatEng(t.primaryResonanceHz, 'Hz')}   (×${num3(t.primaryToSecondaryRatio)} the secondary's)`),
+    row('coupled pair rings at', `${formatEng(t.coupledModesHz.lowerHz, 'Hz')} and ${formatEng(t.coupledModesHz.upperHz, 'Hz')}`),
+  ];
+  if (t.sparkGap) {
+    lines.push(row('spark gap at the supply peak (estimate)', `${formatEng(t.sparkGap.breakdownGapM, 'm')}   (${formatEng(t.sparkGap.supplyPeakV, 'V')} at 3 kV/mm)`));
+    if (t.sparkGap.tankEnergyJ !== null) lines.push(row('tank energy per firing ½CV²', formatEng(t.sparkGap.tankEnergyJ, 'J')));
+  }
+  lines.push(...t.notes.map((n) => `  - ${n}`), ...t.cautions.map((c) => `  ! ${c}`));
+  return lines;
+}
+
 /** The human-readable report: one figure per line, units shown, alternatives in brackets. */
 export function formatCoilReport(r: CoilReport): string {
   const s = r.secondary;
@@ -61,6 +82,7 @@ export function formatCoilReport(r: CoilReport): string {
     row('primary inductance (current sheet)', formatEng(r.primary.inductanceH, 'H')),
     row('mutual inductance (Maxwell, turn pairs)', formatEng(r.mutualInductanceH, 'H')),
     row('coupling k', num3(r.couplingK)),
+    ...tankLines(r, row),
     '',
     'Voltage and clearance (upper bounds, not promises)',
     row('energy per longest on-time', formatEng(r.voltage.energyJ, 'J')),

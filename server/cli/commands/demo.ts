@@ -2,8 +2,9 @@ import { mkdir, writeFile } from 'node:fs/promises';
 import { join, relative, resolve } from 'node:path';
 import { DEMO_CLIPS, synthDemoClip } from '../../../shared/demo/clips.ts';
 import { DEMO_COILS } from '../../../shared/demo/coils.ts';
+import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
+import { DEMO_SMALL_RIG } from '../../../shared/demo/small-rig.ts';
 import { InputError } from '../../../shared/errors.ts';
-import { DEMO_DRIVERS } from '../../../shared/demo/drivers.ts';
 import { encodeWav } from '../../audio/wav.ts';
 import { type Command, runWithArgs } from '../io.ts';
 import { DEMO_OPTIONS } from './tables.ts';
@@ -14,7 +15,10 @@ import { planCommand } from './plan.ts';
 const DEMO_COIL = 'desk-lantern';
 /** Invented bench measurements of the demo coil: resonance a little below the computed one, loaded Q. */
 const DEMO_MEASURED = { resonanceHz: 318_000, qualityFactor: 45 };
+const DEMO_DRIVERS = [DEMO_DRIVER_LINEAR, DEMO_DRIVER_BUCK, DEMO_DRIVER_PULSE];
 const DRIVER_FILES = ['driver-linear.json', 'driver-buck.json', 'driver-pulse.json'];
+/** The small rig: its own coil and single-bipolar driver. */
+const SMALL_FILES = { coil: 'coil-small.json', driver: 'driver-small.json' };
 
 /**
  * Writes our invented demo scenario (synthesised clips, a coil, three drivers, a set) into a folder
@@ -39,6 +43,8 @@ export const demoCommand: Command<typeof DEMO_OPTIONS.options> = {
     const coil = { ...DEMO_COILS[DEMO_COIL], measured: DEMO_MEASURED };
     await writeFile(join(dir, 'coil.json'), JSON.stringify(coil, null, 2) + '\n');
     await Promise.all(DEMO_DRIVERS.map((d, i) => writeFile(join(dir, DRIVER_FILES[i]), JSON.stringify(d, null, 2) + '\n')));
+    await writeFile(join(dir, SMALL_FILES.coil), JSON.stringify(DEMO_SMALL_RIG.coil, null, 2) + '\n');
+    await writeFile(join(dir, SMALL_FILES.driver), JSON.stringify(DEMO_SMALL_RIG.driver, null, 2) + '\n');
     const set = {
       coil: 'coil.json',
       driver: DRIVER_FILES[0],
@@ -47,7 +53,7 @@ export const demoCommand: Command<typeof DEMO_OPTIONS.options> = {
     await writeFile(join(dir, 'set.json'), JSON.stringify(set, null, 2) + '\n');
 
     const section = (title: string) => io.out(`\n== ${title}\n`);
-    io.out(`demo scenario written to ${shown}/: ${DEMO_CLIPS.map((c) => `${c.name}.wav`).join(', ')}, coil.json, ${DRIVER_FILES.join(', ')}, set.json\n`);
+    io.out(`demo scenario written to ${shown}/: ${DEMO_CLIPS.map((c) => `${c.name}.wav`).join(', ')}, coil.json, ${DRIVER_FILES.join(', ')}, set.json; the small rig: ${SMALL_FILES.coil}, ${SMALL_FILES.driver}\n`);
     const clip = join(dir, `${DEMO_CLIPS[0].name}.wav`);
     section(`analysis of ${DEMO_CLIPS[0].name}.wav`);
     await runWithArgs(analyzeCommand, [clip], io);
@@ -58,6 +64,8 @@ export const demoCommand: Command<typeof DEMO_OPTIONS.options> = {
       section(`plan for ${DEMO_CLIPS[0].name}.wav with ${f}`);
       await runWithArgs(planCommand, ['--clip', clip, '--coil', join(dir, 'coil.json'), '--driver', join(dir, f)], io);
     }
+    section(`plan for ${DEMO_CLIPS[0].name}.wav on the small rig (${SMALL_FILES.coil}, ${SMALL_FILES.driver}: one bipolar switch, series MOSFET on the rail)`);
+    await runWithArgs(planCommand, ['--clip', clip, '--coil', join(dir, SMALL_FILES.coil), '--driver', join(dir, SMALL_FILES.driver)], io);
     section(`set plan (${shown}/set.json)`);
     await runWithArgs(planCommand, ['--set', join(dir, 'set.json')], io);
     io.out(

@@ -4,7 +4,8 @@ import type { CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { type PlanSettings, planSettings } from '../../../shared/plan/evaluate.ts';
 import { type SetResult, planSet } from '../../../shared/plan/set.ts';
 import { traceCsv } from '../../../shared/plan/trace.ts';
-import type { DriverProfile } from '../../../shared/schemas/driver.ts';
+import type { DeviceRole, DriverProfile } from '../../../shared/schemas/driver.ts';
+import { tooSlowLabel } from '../../../shared/physics/driver/transition.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
 import { type PlanDocument, jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
@@ -41,7 +42,10 @@ export function formatPlan(r: PlanDocument, coil: CoilReport, driver: DriverProf
   }
   out.push(`evaluated at ${Number.isFinite(r.evaluatedGainDb) ? r.evaluatedGainDb.toFixed(1) : '-inf'} dB:`);
   for (const d of r.devices) {
-    out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
+    out.push(`  ${d.role.padEnd(9)} ×${d.count}  peak Tj ${f1(d.peakJunctionC)} °C at ${d.peakAtS.toFixed(2)} s (limit ${f1(d.limitC)}, Tj max ${f1(d.tjMaxC)})  mean loss ${d.meanLossW.toFixed(2)} W per switch${d.transitionShare !== null ? `  transitions ${(d.transitionShare * 100).toFixed(1)} % of each cycle${d.tooSlow ? ' (TOO SLOW)' : ''}` : ''}${d.runawayAtS !== null ? `  THERMAL RUNAWAY at ${d.runawayAtS.toFixed(2)} s` : ''}`);
+  }
+  for (const f of r.idle) {
+    out.push(`  idle      ${f.role}: settles at ${Number.isFinite(f.steadyJunctionC) ? `${f.steadyJunctionC.toFixed(1)} °C` : 'runaway'} (supply on, no music, rail ${f.railV.toFixed(1)} V, ${f.lossW.toFixed(2)} W; limit ${f1(f.limitC)})${f.reachesLimitAfterS !== null ? `, at its limit after ${f.reachesLimitAfterS.toFixed(0)} s` : ''}`);
   }
   out.push(
     r.supply.peakIs === 'pulse-current'
@@ -50,7 +54,7 @@ export function formatPlan(r: PlanDocument, coil: CoilReport, driver: DriverProf
   );
   out.push(`  over-modulated time ${pct(r.overModulationFraction)} of the time (${r.overModulationTimeS.toFixed(3)} s)`);
   if (r.pulses) {
-    out.push(`  pulses ${r.pulses.count}: cut to the longest on-time ${r.pulses.onTimeClamped}, clamped by the duty limit ${r.pulses.dutyClamped}, dropped for the off-time ${r.pulses.offTimeDropped}`);
+    out.push(`  pulses ${r.pulses.count}: cut to the longest on-time ${r.pulses.onTimeClamped}, clamped by the duty limit ${r.pulses.dutyClamped}, dropped for the off-time ${r.pulses.offTimeDropped}, dropped below the ${formatEng(r.pulses.minOnTimeS, 's')} minimum on-time ${r.pulses.minOnTimeDropped}`);
   }
   if (r.dutyCycle) {
     const d = r.dutyCycle;

@@ -15,6 +15,7 @@ import {
   medhurstTableCovers,
   radiotronSelfCapacitanceF,
 } from './self-capacitance.ts';
+import { type TankReport, tankReport } from './tank.ts';
 import { sphereCapacitanceF, thinRingCapacitanceF, torusCapacitanceF } from './top-load.ts';
 import {
   AIR_BREAKDOWN_V_PER_M,
@@ -177,6 +178,8 @@ export interface CoilReport {
   keepOutM: number | null;
   /** Which of the two set the keep-out distance; null without drive figures. */
   keepOutSetBy: 'breakdown-gap' | 'arc-reach' | null;
+  /** The primary as a resonant tank (./tank.ts): tuning capacitance and the rest; null unless the profile marks it. */
+  tank: TankReport | null;
   cautions: string[];
   notes: string[];
 }
@@ -376,6 +379,7 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
     },
     keepOutM,
     keepOutSetBy: keepOut?.setBy ?? null,
+    tank: tankReport(profile, f0, L1, couplingCoefficient(M, L1, L2)),
     cautions: [...COIL_CAUTIONS],
     notes,
   };

@@ -2,7 +2,10 @@
  * Checks and set-up shared by the rail and pulse simulations.
  */
 import { BRIDGE_SWITCH_COUNT, ROLES_FOR_SCHEME, type DriverProfile } from '../../schemas/driver.ts';
+import { bjtSaturationWarning } from './bjt.ts';
+import { bridgeCurrentFactors } from './currents.ts';
 import { DeviceRun } from './device-run.ts';
+import { deviceSwitching, tooSlowWarning } from './transition.ts';
 import type { CoilAtResonance, SimulationOptions } from './types.ts';
 
 /**
@@ -43,4 +46,26 @@ export function setUpRuns(fn: string, driver: DriverProfile, opts: SimulationOpt
     if (!roles.includes(d.role)) warnings.push(`profile: the ${d.role} device is not used by the ${driver.scheme} scheme and was ignored.`);
   }
   return { runs, ambientC, warnings };
+}
+
+/**
+ * Warnings about the devices themselves, whatever the drive: a switch too slow for the frequency it
+ * switches at (./transition.ts), and a BJT whose peak collector current at the full rail (bridge:
+ * k_pk·fullRailCurrentA; modulator: fullRailCurrentA) is above the current its V_CE(sat) is stated at.
+ *
+ * @example deviceWarnings(DEMO_DRIVER_LINEAR, 318e3) // → []
+ */
+export function deviceWarnings(driver: DriverProfile, resonanceHz: number): string[] {
+  const out: string[] = [];
+  for (const role of ROLES_FOR_SCHEME[driver.scheme]) {
+    const dev = driver.devices.find((d) => d.role === role);
+    if (!dev) continue;
+    const slow = tooSlowWarning(deviceSwitching(driver, role, resonanceHz));
+    if (slow) out.push(slow);
+    if (role === 'pass') continue;
+    const peakA = role === 'bridge' ? bridgeCurrentFactors(driver.topology).switchPeak * driver.fullRailCurrentA : driver.fullRailCurrentA;
+    const sat = bjtSaturationWarning(dev, role, peakA);
+    if (sat) out.push(sat);
+  }
+  return out;
 }

@@ -12,7 +12,7 @@ import type { DeviceSimulation, DeviceTraces, ThermalState } from './types.ts';
 
 /**
  * A frame loss model, per switch: with m = E[v] and s = E[v²] of the rail over a frame,
- * I²R part at 25 °C a = rS·s + r3·E3(m, s) and other part b = (oM·m + oC·[m > 0])·h(m) + oS·s, where
+ * I²R part at 25 °C a = rS·s + r3·E3(m, s) and other part b = (oM·m + oC·[m > 0])·h(m) + oS·s + oN·m, where
  * E3 is the upper bound of E[v³] (railThirdMomentBoundV3) and h the share of PWM cycles that
  * switch (modulatorSwitchingShare with `taperV`; h = 1 when taperV is undefined). Every loss model
  * of ./losses.ts for a rail has this form (see frameLossModel in ./simulate-rail.ts).
@@ -24,6 +24,8 @@ export interface FrameLossModel {
   oM: number;
   oS: number;
   oC: number;
+  /** Buck modulator only: the part proportional to E[v] that is not tapered (a BJT's fixed base drive), W/V. Default 0. */
+  oN?: number;
   /** Buck modulator only: the width below V_s over which its switching stops (modulatorTaperV), V. */
   taperV?: number;
 }
@@ -36,7 +38,7 @@ export function frameResistiveAt25W(model: FrameLossModel, m: number, s: number)
 /** The temperature-independent part b of {@link FrameLossModel}, W, for a feasible (m, s). */
 export function frameOtherW(model: FrameLossModel, m: number, s: number): number {
   const h = model.taperV === undefined ? 1 : modulatorSwitchingShare(m, model.supplyV, model.taperV);
-  return (model.oM * m + (m > 0 ? model.oC : 0)) * h + model.oS * s;
+  return (model.oM * m + (m > 0 ? model.oC : 0)) * h + model.oS * s + (model.oN ?? 0) * m;
 }
 
 /**

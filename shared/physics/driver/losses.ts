@@ -12,7 +12,9 @@
  * duty relations from Erickson & Maksimović, *Fundamentals of Power Electronics*, 2nd ed., ch. 2.
  */
 import type { DriverDevice, DriverTopology } from '../../schemas/driver.ts';
+import { bjtBaseDriveW, bjtBridgeLossParts } from './bjt.ts';
 import { bridgeCurrentFactors } from './currents.ts';
+import { boundTransitionParts, linearElementBoundW, tooSlow } from './transition.ts';
 
 /** A device's average loss over an interval, split by temperature dependence (all W, per switch). */
 export interface LossParts {
@@ -77,7 +79,14 @@ export const emptyLossParts = (): LossParts => ({ resistiveAt25W: 0, conductionF
  *   current (ZCS), which removes most of this term; switching at the current peak is the upper
  *   bound for any phase error, kept here as the conservative estimate;
  * - output capacitance: ½·C_oss·E[V²]·f0 (energy of C_oss discharged at each hard turn-on; zero
- *   with zero-voltage switching, kept as conservative).
+ *   with zero-voltage switching, kept as conservative);
+ * - a bipolar transistor (kind "bjt"): {@link bjtBridgeLossParts} (./bjt.ts: V_CE(sat) conduction, base
+ *   drive V_BE(sat)·I_B, transitions with the storage time, C_oss).
+ * Past the transition-share limit ((t_r + t_f + t_s)·f0 > TRANSITION_SHARE_LIMIT, ./transition.ts)
+ * the hard-switching estimate no longer holds: the transition and C_oss parts are replaced by the
+ * larger of their sum and the linear-element bound ¼·V·Î = ¼·k_pk·E[V·I] (a device in its active
+ * region on the load line from the rail to the switch's peak current), so the figure never drops
+ * below the hard-switching estimate.
  *
  * @example bridgeLossParts(dev, 'half-bridge', 300e3, railMoments(0.0625, 48, 2304))
  */
@@ -89,13 +98,18 @@ export function bridgeLossParts(
   out?: LossParts,
 ): LossParts {
   const k = bridgeCurrentFactors(topology);
-  const r = device.rdsOnOhm ?? 0;
-  const vce = device.kind === 'igbt' ? (device.vceSatV ?? 0) : 0;
   const o = out ?? emptyLossParts();
-  o.resistiveAt25W = r * k.switchRms * k.switchRms * m.meanSquareCurrentA2;
-  o.conductionFixedW = vce * k.switchAvg * m.meanCurrentA;
-  o.switchingW = 0.5 * k.switchPeak * m.meanPowerW * (device.riseTimeS + device.fallTimeS) * resonanceHz;
-  o.capacitiveW = 0.5 * device.outputCapacitanceF * m.meanSquareV2 * resonanceHz;
+  if (device.kind === 'bjt') bjtBridgeLossParts(device, topology, resonanceHz, m, o);
+  else {
+    const r = device.rdsOnOhm ?? 0;
+    const vce = device.kind === 'igbt' ? (device.vceSatV ?? 0) : 0;
+    o.resistiveAt25W = r * k.switchRms * k.switchRms * m.meanSquareCurrentA2;
+    o.conductionFixedW = vce * k.switchAvg * m.meanCurrentA;
+    o.switchingW = 0.5 * k.switchPeak * m.meanPowerW * (device.riseTimeS + device.fallTimeS) * resonanceHz;
+    o.capacitiveW = 0.5 * device.outputCapacitanceF * m.meanSquareV2 * resonanceHz;
+  }
+  // E[V·Î] = k_pk·E[V·I]: the bound ¼·V·Î averaged over the interval.
+  if (tooSlow(device, resonanceHz)) boundTransitionParts(o, linearElementBoundW(1, k.switchPeak * m.meanPowerW));
   return o;
 }
 
@@ -149,9 +163,17 @@ export function railThirdMomentBoundV3(meanV: number, meanSquareV2: number, maxV
  * - switching ½·V_s·I·(t_r + t_f)·f_pwm → ½·V_s·g·E[v]·(t_r + t_f)·f_pwm (hard-switched, clamped
  *   inductive: Mohan et al. eq. 2-6 [recalled]; Graovac et al. 2006 [recalled]);
  * - output capacitance ½·C_oss·V_s²·f_pwm while the modulator switches (E[v] > 0);
- * - both switching parts times the share h(E[v]) of PWM cycles that still switch
- *   ({@link modulatorSwitchingShare}): at 100 % duty the switch stays on and neither part exists,
- *   and they fall to zero continuously as the duty approaches it (no step).
+ * - a BJT: conduction as an IGBT's, base drive V_BE(sat)·I_B,avg with I_B,avg = D·I/β_F
+ *   (→ V_BE·g·E[v²]/(β_F·V_s)) or D·I_B (→ V_BE·I_B·E[v]/V_s), and the storage time counted in the
+ *   switching overlap (./bjt.ts);
+ * - past the transition-share limit at f_pwm (./transition.ts): the linear-element bound g·V_s²/4
+ *   (a linear pass element's worst case) is ADDED to the switching and C_oss parts while the
+ *   modulator runs (a sum, not the maximum, so the loss stays affine in E[v] and E[v²]; still never
+ *   below the hard-switching estimate);
+ * - the switching parts (transitions, C_oss, the linear-element bound) times the share h(E[v]) of
+ *   PWM cycles that still switch ({@link modulatorSwitchingShare}): at 100 % duty the switch stays
+ *   on and none of them exists, and they fall to zero continuously as the duty approaches it (no
+ *   step). Conduction and base drive go on at 100 % duty and are not tapered.
  * The freewheel diode's conduction and recovery losses are in another device and neglected here.
  *
  * @example modulatorLossParts(dev, 160, 100e3, 0.025, 80, 6400)
@@ -167,24 +189,36 @@ export function modulatorLossParts(
 ): LossParts {
   const ev3 = railThirdMomentBoundV3(meanV, meanSquareV2, supplyV);
   const r = device.rdsOnOhm ?? 0;
-  const vce = device.kind === 'igbt' ? (device.vceSatV ?? 0) : 0;
+  const vce = device.kind === 'mosfet' ? 0 : (device.vceSatV ?? 0);
+  const overlapS = device.riseTimeS + device.fallTimeS + (device.kind === 'bjt' ? (device.storageTimeS ?? 0) : 0);
   const o = out ?? emptyLossParts();
+  // Switch current averaged over the interval: D·I = (v/V_s)·g·v → g·E[v²]/V_s.
+  const switchAvgA = (gAPerV * Math.max(meanSquareV2, 0)) / supplyV;
   o.resistiveAt25W = (r * gAPerV * gAPerV * ev3) / supplyV;
-  o.conductionFixedW = (vce * gAPerV * Math.max(meanSquareV2, 0)) / supplyV;
+  o.conductionFixedW = vce * switchAvgA;
+  if (device.kind === 'bjt') {
+    // Fixed base current flows for the on-fraction D = v/V_s: averaged, I_B·E[v]/V_s.
+    o.conductionFixedW +=
+      device.forcedGain !== undefined && device.forcedGain !== null
+        ? bjtBaseDriveW(device, switchAvgA, meanV > 0)
+        : bjtBaseDriveW(device, 0, meanV > 0, Math.max(meanV, 0) / supplyV);
+  }
   const h = modulatorSwitchingShare(meanV, supplyV, modulatorTaperV(device, supplyV, pwmHz));
-  o.switchingW = 0.5 * supplyV * gAPerV * Math.max(meanV, 0) * (device.riseTimeS + device.fallTimeS) * pwmHz * h;
+  o.switchingW = 0.5 * supplyV * gAPerV * Math.max(meanV, 0) * overlapS * pwmHz * h;
   o.capacitiveW = meanV > 0 ? 0.5 * device.outputCapacitanceF * supplyV * supplyV * pwmHz * h : 0;
+  if (meanV > 0 && tooSlow(device, pwmHz)) o.switchingW += 0.25 * gAPerV * supplyV * supplyV * h;
   return o;
 }
 
 /**
- * Width below the supply, V, over which the buck modulator's switching stops: V_s·(t_r + t_f)·f_pwm.
- * At duty D the switch is off for (1 − D)/f_pwm per cycle; once that is shorter than its own
- * turn-off plus turn-on time t_r + t_f it no longer completes a transition, and at D = 1 it stays
+ * Width below the supply, V, over which the buck modulator's switching stops: V_s·(t_r + t_f + t_s)·f_pwm
+ * (t_s, a BJT's storage time, is 0 for other kinds). At duty D the switch is off for
+ * (1 − D)/f_pwm per cycle; once that is shorter than its own turn-off plus turn-on time it no
+ * longer completes a transition, and at D = 1 it stays
  * on (Erickson & Maksimović ch. 2: D = v/V_s). Example: 160 V, 40 ns, 150 kHz → 0.96 V.
  */
-export function modulatorTaperV(device: Pick<DriverDevice, 'riseTimeS' | 'fallTimeS'>, supplyV: number, pwmHz: number): number {
-  return supplyV * (device.riseTimeS + device.fallTimeS) * pwmHz;
+export function modulatorTaperV(device: Pick<DriverDevice, 'kind' | 'riseTimeS' | 'fallTimeS' | 'storageTimeS'>, supplyV: number, pwmHz: number): number {
+  return supplyV * (device.riseTimeS + device.fallTimeS + (device.kind === 'bjt' ? (device.storageTimeS ?? 0) : 0)) * pwmHz;
 }
 
 /**

@@ -3,7 +3,7 @@
  */
 import type { DriverProfile } from '../../schemas/driver.ts';
 import type { StepCoefficients } from '../thermal/network.ts';
-import { checkCoil, setUpRuns } from './common.ts';
+import { checkCoil, deviceWarnings, setUpRuns } from './common.ts';
 import { ringUpTimeS } from './currents.ts';
 import { bridgeLossParts, emptyLossParts } from './losses.ts';
 import type { CoilAtResonance, DeviceTraces, DriverSimulation, PulseTrain, SimulationOptions } from './types.ts';
@@ -145,6 +145,7 @@ export function simulatePulses(
   }
   advance(t, durationS, 0, null);
 
+  warnings.push(...deviceWarnings(driver, f0));
   for (const r of runs) warnings.push(...r.warnings());
   const duty = onTotal / durationS;
   if (lim) {

@@ -3,20 +3,23 @@
  * scheme), frame by frame.
  */
 import type { DeviceRole, DriverProfile } from '../../schemas/driver.ts';
-import { checkCoil, setUpRuns } from './common.ts';
+import { checkCoil, deviceWarnings, setUpRuns } from './common.ts';
 import { railConductanceAPerV } from './currents.ts';
 import type { FrameLossModel } from './device-run.ts';
-import { bridgeLossParts, buckSupplyCurrentA, modulatorTaperV, railMoments, type LossParts } from './losses.ts';
+import { bridgeLossParts, buckSupplyCurrentA, modulatorLossParts, modulatorSwitchingShare, modulatorTaperV, railMoments, type LossParts } from './losses.ts';
 import type { CoilAtResonance, DriverSimulation, RailFrames, SimulationOptions } from './types.ts';
 
 /**
  * The per-switch loss of a role over a rail frame in the form of {@link FrameLossModel}
- * (a = rS·s + r3·E3, b = (oM·m + oC·[m > 0])·h(m) + oS·s with m = E[v], s = E[v²]):
- * - bridge: {@link bridgeLossParts} of {@link railMoments}, which is linear in m and s — split by
- *   evaluating it at (m, s) = (0, 1) and (1, 0);
+ * (a = rS·s + r3·E3, b = (oM·m + oC·[m > 0])·h(m) + oS·s + oN·m with m = E[v], s = E[v²]):
+ * - bridge: {@link bridgeLossParts} of {@link railMoments}, which is affine in m and s while the
+ *   switch runs — split by evaluating it at (m, s) = (0, 1), (1, 0) and (2, 0) (the constant part is
+ *   a BJT's fixed base drive);
  * - pass: {@link passLossParts} = g·(V_s·m − s): oM = g·V_s, oS = −g;
- * - modulator: {@link modulatorLossParts}: r3 = R·g²/V_s, oS = V_CE·g/V_s, oM = ½·V_s·g·(t_r+t_f)·f_pwm,
- *   oC = ½·C_oss·V_s²·f_pwm, taperV = V_s·(t_r + t_f)·f_pwm (no switching at 100 % duty).
+ * - modulator: {@link modulatorLossParts}: r3 = R·g²/V_s; its switching parts (tapered by h, no
+ *   switching at 100 % duty, taperV = modulatorTaperV) give oM and oC, its conduction and base
+ *   drive (not tapered) give oS and oN, each by evaluating the parts at feasible points where h = 1
+ *   (for a MOSFET: oS = 0, oN = 0, oM = ½·V_s·g·(t_r+t_f)·f_pwm, oC = ½·C_oss·V_s²·f_pwm).
  * The tests check each against the LossParts functions.
  *
  * @example frameLossModel(DEMO_DRIVER_LINEAR, 'pass', 300e3) // → { oM: 3, oS: −0.0625, … }
@@ -30,20 +33,39 @@ export function frameLossModel(driver: DriverProfile, role: DeviceRole, resonanc
   const other = (p: LossParts) => p.conductionFixedW + p.switchingW + p.capacitiveW;
   if (role === 'bridge') {
     const perS = bridgeLossParts(dev, driver.topology, resonanceHz, railMoments(g, 0, 1));
-    const perM = bridgeLossParts(dev, driver.topology, resonanceHz, railMoments(g, 1, 0));
+    // At E[v] = 1 and 2 V (E[v²] = 0): the part linear in E[v] and the part constant while running (a BJT's fixed base drive).
+    const perM1 = other(bridgeLossParts(dev, driver.topology, resonanceHz, railMoments(g, 1, 0)));
+    const perM2 = other(bridgeLossParts(dev, driver.topology, resonanceHz, railMoments(g, 2, 0)));
     model.rS = perS.resistiveAt25W;
     model.oS = other(perS);
-    model.oM = other(perM);
+    model.oM = perM2 - perM1;
+    model.oC = 2 * perM1 - perM2;
   } else if (role === 'pass') {
     model.oM = g * vs;
     model.oS = -g;
   } else {
+    // modulatorLossParts is affine in E[v] and E[v²] (apart from its E[v³] part, r3, and the taper h
+    // of its switching parts, divided out here) while E[v] > 0: evaluated where the clamp to the
+    // feasible set does not act (E[v²] = E[v]·V_s is feasible).
     const f = driver.pwmFrequencyHz ?? 0;
+    const taperV = modulatorTaperV(dev, vs, f);
+    const at = (mV: number, sV2: number) => {
+      const p = modulatorLossParts(dev, vs, f, g, mV, sV2);
+      return { fixed: p.conductionFixedW, switching: (p.switchingW + p.capacitiveW) / modulatorSwitchingShare(mV, vs, taperV) };
+    };
+    const a = vs / 4;
+    const b = vs / 2;
+    const pA = at(a, a * vs);
+    const pB = at(b, b * vs);
+    const pC = at(b, b * b);
     model.r3 = ((dev.rdsOnOhm ?? 0) * g * g) / vs;
-    model.oS = dev.kind === 'igbt' ? ((dev.vceSatV ?? 0) * g) / vs : 0;
-    model.oM = 0.5 * vs * g * (dev.riseTimeS + dev.fallTimeS) * f;
-    model.oC = 0.5 * dev.outputCapacitanceF * vs * vs * f;
-    model.taperV = modulatorTaperV(dev, vs, f);
+    // Conduction and base drive: oS·s + oN·m (pB − pC differ in s only, pA − pB in m and s).
+    model.oS = (pB.fixed - pC.fixed) / (b * vs - b * b);
+    model.oN = (pB.fixed - pA.fixed) / (b - a) - model.oS * vs;
+    // Switching parts: oM·m + oC, no dependence on s.
+    model.oM = (pB.switching - pA.switching) / (b - a);
+    model.oC = pA.switching - model.oM * a;
+    model.taperV = taperV;
   }
   return model;
 }
@@ -142,6 +164,7 @@ export function simulateRail(
     deliveredJ += deliveredW * dt;
     if (currentTrace) currentTrace[k] = supplyA;
   }
+  warnings.push(...deviceWarnings(driver, f0));
   for (const r of runs) warnings.push(...r.warnings());
   if (peakCurrentA > driver.supplyCurrentLimitA) {
     warnings.push(

@@ -20,13 +20,19 @@ describe('coilcue demo', () => {
     // The profiles it writes pass the same validation as a person's files.
     const read = (f: string) => JSON.parse(readFileSync(join(show, f), 'utf8'));
     expect(parseCoilProfile(read('coil.json')).measured.qualityFactor).toBe(45);
-    for (const f of ['driver-linear.json', 'driver-buck.json', 'driver-pulse.json']) expect(() => parseDriverProfile(read(f))).not.toThrow();
+    for (const f of ['driver-linear.json', 'driver-buck.json', 'driver-pulse.json', 'driver-small.json']) expect(() => parseDriverProfile(read(f))).not.toThrow();
+    expect(parseDriverProfile(read('driver-small.json')).devices[0].kind).toBe('bjt');
+    expect(parseCoilProfile(read('coil-small.json')).name).toBe('thimble');
     expect(parseSetFile(read('set.json')).items).toHaveLength(3);
     // Each step answered: analysis, coil, one plan per driver with its binding limit, the set.
     expect(io.stdout).toMatch(/integrated loudness/);
     expect(io.stdout).toMatch(/resonance\s+318 kHz\s+\(measured\)/);
-    expect(io.stdout.match(/advised gain: -?\d+\.\d dB/g)).toHaveLength(3);
-    expect(io.stdout.match(/binding limit: /g)).toHaveLength(3);
+    expect(io.stdout.match(/advised gain: -?\d+\.\d dB/g)).toHaveLength(4);
+    expect(io.stdout.match(/binding limit: /g)).toHaveLength(4);
+    // The small rig is bound by its own bipolar switch, which stands in free air.
+    const small = io.stdout.slice(io.stdout.indexOf('on the small rig'));
+    expect(small).toMatch(/binding limit: junction-temperature \(bridge\)/);
+    expect(small).toMatch(/bridge\s+×1 .*transitions 15\.8 % of each cycle/);
     expect(io.stdout).toMatch(/set of 3 clips/);
     expect(io.stdout).toMatch(/Caution: /);
     expect(io.stderr).toBe('');

@@ -185,7 +185,7 @@ describe('evaluateAtGain: the other limits', () => {
     const d = pulseDriver(mosfet('bridge', { rKPerW: 0.5, tauS: 0.01, sinkToAmbientKPerW: 1 }));
     const clip = planClip('t', tone(200, 0.5, 0.5), { pulses: true });
     const e = evaluateAtGain(clip, COIL, d, 0, planSettings(d));
-    expect(e.limits.map((l) => l.limit)).toEqual(['junction-temperature', 'over-modulation', 'supply-current', 'on-time', 'duty']);
+    expect(e.limits.map((l) => l.limit)).toEqual(['junction-temperature', 'over-modulation', 'supply-current', 'on-time', 'duty', 'switching-speed']);
     // 200 Hz: one pulse per cycle, 100 in 0.5 s (zero crossings; the first may fall on the edge).
     expect(e.pulses!.count).toBeGreaterThanOrEqual(99);
     expect(() => evaluateAtGain({ ...clip, pulseEvents: undefined }, COIL, d, 0, planSettings(d))).toThrow(/pulseEvents/);

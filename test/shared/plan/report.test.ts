@@ -148,7 +148,9 @@ describe('planClipReport: figures and warnings', () => {
     // Rail-linear supply current g·E[v] = 1.5 A with a zero-mean tone.
     expect(report.supply.meanCurrentA).toBeCloseTo(1.5, 6);
     expect(report.searchEvaluations).toBe(advice.evaluations);
-    expect(report.limits).toHaveLength(4);
+    // Junction temperature of both devices, over-modulation, supply current, and the bridge's switching speed.
+    expect(report.limits).toHaveLength(5);
+    expect(report.devices.map((d) => d.transitionShare === null)).toEqual([false, true]);
     expect(report.warnings).toEqual([]);
     const back = JSON.parse(JSON.stringify(report));
     expect(back.binding.limit).toBe('junction-temperature');

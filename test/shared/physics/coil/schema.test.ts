@@ -37,7 +37,7 @@ describe('parseCoilProfile', () => {
       if (s.type === 'number' || s.type === 'integer') {
         expect(typeof s.minimum, path).toBe('number');
         expect(typeof s.maximum, path).toBe('number');
-        expect(String(s.description), path).toMatch(/in m\b|in F\b|in Hz\b|number|dimensionless/);
+        expect(String(s.description), path).toMatch(/in m\b|in F\b|in Hz\b|in H\b|in V\b|number|dimensionless/);
       }
       for (const v of Object.values((s.properties as Record<string, Record<string, unknown>>) ?? {})) walk(v, path);
       for (const v of (s.anyOf as Record<string, unknown>[]) ?? []) walk(v, path);
