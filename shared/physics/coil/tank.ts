@@ -101,7 +101,7 @@ export function tankReport(profile: CoilProfile, secondaryResonanceHz: number, p
     if (vpk !== null) {
       sparkGap = {
         supplyPeakV: vpk,
-        breakdownGapM: airBreakdownGapM(vpk),
+        breakdownGapM: airBreakdownGapM(vpk, AIR_BREAKDOWN_V_PER_M),
         tankEnergyJ: cFit === null ? null : 0.5 * cFit * vpk * vpk,
         basis: `Estimate: the gap that breaks down at the supply's peak in dry air at ${AIR_BREAKDOWN_V_PER_M / 1e6} kV/mm in a uniform field. Electrode shape, humidity, heating and ionised air change it; set a real gap by test, starting narrow.`,
       };

@@ -7,6 +7,7 @@ import { deviceWarnings } from '../../../../shared/physics/driver/common.ts';
 import { bridgeCurrentFactors } from '../../../../shared/physics/driver/currents.ts';
 import { bridgeLossParts, emptyLossParts, modulatorLossParts, railMoments, railThirdMomentBoundV3 } from '../../../../shared/physics/driver/losses.ts';
 import { frameLossModel } from '../../../../shared/physics/driver/simulate-rail.ts';
+import { frameOtherW, frameResistiveAt25W } from '../../../../shared/physics/driver/device-run.ts';
 import {
   TRANSITION_SHARE_LIMIT,
   deviceSwitching,
@@ -200,7 +201,7 @@ describe('rail frame model with bipolar devices', () => {
           const other = (p: { conductionFixedW: number; switchingW: number; capacitiveW: number }) => p.conductionFixedW + p.switchingW + p.capacitiveW;
           const evalModel = (role: 'bridge' | 'modulator') => {
             const f = frameLossModel(d, role, f0);
-            return [f.rS * s + f.r3 * railThirdMomentBoundV3(m, s, vs), f.oM * m + f.oS * s + (m > 0 ? f.oC : 0)];
+            return [frameResistiveAt25W(f, m, s), frameOtherW(f, m, s)];
           };
           const pb = bridgeLossParts(d.devices[0], d.topology, f0, railMoments(g, m, s));
           const [ra, oa] = evalModel('bridge');
