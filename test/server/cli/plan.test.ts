@@ -139,7 +139,8 @@ describe('coilcue plan --set', () => {
     for (const it of s.items) {
       expect(typeof it.advisedGainDb).toBe('number');
       expect(typeof it.peakJunctionC).toBe('number');
-      expect(it).toHaveProperty('minGapAfterS');
+      expect(it).toHaveProperty('minSafeGapAfterS');
+      expect(it).toHaveProperty('recoveryGapS');
     }
     expect(s.items[1].gapAfterS).toBe(0);
   });
