@@ -96,7 +96,7 @@ export function formatSet(s: SetResult): string {
   out.push(
     `idling between clips the driver settles at ${temps(s.idleSteadyJunctionC)}` +
       (idleWarm.length
-        ? ` — ${idleWarm.map((d) => d.role).join(', ')} dissipates even with no music (a linear pass device holds the rail at half the supply), so it never cools to ambient; recovery below is measured against this idle temperature`
+        ? ` — ${idleWarm.map((d) => d.role).join(' and ')} ${idleWarm.length > 1 ? 'dissipate' : 'dissipates'} even with no music (the rail idles at half the supply), so ${idleWarm.length > 1 ? 'they never cool' : 'it never cools'} to ambient; recovery below is measured against this idle temperature`
         : ' (no loss at idle: the devices cool toward ambient)'),
   );
   s.items.forEach((it, i) => {
@@ -116,7 +116,7 @@ export function formatSet(s: SetResult): string {
       it.recoveryGapS === null
         ? `not within ${s.recoveredWithinK} K of its idle temperature after ${s.gapSearchBoundS} s`
         : it.recoveryGapS === 0
-          ? `already within ${s.recoveredWithinK} K of its idle temperature (${temps(it.recoversToC)}) at the end: 0 s`
+          ? `0 s: the clip ends no more than ${s.recoveredWithinK} K above the idle temperature (${temps(it.recoversToC)}), so waiting would not cool it further`
           : `back within ${s.recoveredWithinK} K of its idle temperature (${temps(it.recoversToC)}) after ${it.recoveryGapS.toFixed(1)} s`;
     out.push(`    gap ${it.gapAfterS} s; ${safe}; recovery: ${rec}`);
   });
