@@ -176,7 +176,7 @@ export function parseOptions<T extends OptionTable>(argv: readonly string[], c: 
     const spec = Object.hasOwn(c.options, name) ? c.options[name] : undefined;
     if (!spec) {
       const near = nearest(name, names);
-      throw bad(`unknown option ${eq >= 0 ? a.slice(0, eq) : a}${near ? `; did you mean --${near}?` : ''} Usage: ${usage}`);
+      throw bad(`unknown option ${eq >= 0 ? a.slice(0, eq) : a}${near ? `; did you mean --${near}?` : '.'} Usage: ${usage}`);
     }
     if (!a.startsWith('--')) throw bad(`options take two dashes: write --${name}. Usage: ${usage}`, name);
     if (Object.hasOwn(raw, name)) throw bad(`--${name} is given twice; give it once`, name);

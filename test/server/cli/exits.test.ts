@@ -100,6 +100,21 @@ describe('every command exits 2 on every class of bad option, and leaves nothing
     expect(r.code).toBe(2);
   }, HANG_MS + 5_000);
 
+  it('Ctrl-C ends a running command at once with exit code 130', async () => {
+    // The demo runs for many seconds (synthesis, analysis, plans): interrupt it once it has started.
+    const child = spawn(process.execPath, [bin, 'demo', '--out', 'interrupted'], { cwd: dir, stdio: ['ignore', 'pipe', 'pipe'] });
+    let err = '';
+    child.stderr.on('data', (d) => (err += d));
+    await new Promise<void>((resolve) => child.stdout.once('data', () => resolve()));
+    child.kill('SIGINT');
+    const timer = setTimeout(() => child.kill('SIGKILL'), HANG_MS);
+    const [code, signal] = await new Promise<[number | null, string | null]>((resolve) => child.on('close', (c, s) => resolve([c, s])));
+    clearTimeout(timer);
+    expect(signal).toBeNull();
+    expect(code).toBe(130);
+    expect(err).toMatch(/coilcue: interrupted/);
+  }, HANG_MS + 5_000);
+
   it('an unknown command names the nearest one', async () => {
     const r = await run(['pln']);
     expect(r.code).toBe(2);
