@@ -70,7 +70,7 @@ export interface CommandOptions<T extends OptionTable = OptionTable> {
    * Checks between options (one requires or excludes another), run at the end of parsing with the
    * parsed values; returns the message of the first problem, or null.
    */
-  check?(values: Record<string, unknown>): string | null;
+  check?(values: Record<string, unknown>, positionals: readonly string[]): string | null;
 }
 
 type ValueOf<O> = O extends NumberOption
@@ -233,7 +233,7 @@ export function parseOptions<T extends OptionTable>(argv: readonly string[], c: 
     throw bad(p.max === 0 ? `unexpected argument "${positionals[0]}"; every input is an option. Usage: ${usage}` : `give at most ${p.max} ${p.value}, got ${positionals.length}. Usage: ${usage}`);
   }
   if (positionals.length < p.min) throw bad(`give ${p.value} (${p.what}). Usage: ${usage}`);
-  const problem = c.check?.(values) ?? null;
+  const problem = c.check?.(values, positionals) ?? null;
   if (problem !== null) throw bad(`${problem}. Usage: ${usage}`);
   return { values: values as OptionValues<T>, positionals };
 }
