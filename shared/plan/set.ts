@@ -181,12 +181,12 @@ export function planSet(
   coil: CoilAtResonance,
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { commonGainDb?: number | 'min-advised' } = {},
+  opts: { commonGainDb?: number | 'min-advised'; /** Search the safe gaps (default true; the common-gain pre-pass skips them). */ safeGaps?: boolean } = {},
 ): SetResult {
   if (items.length === 0) throw new RangeError('planSet: the set has no items');
   let common: number | null = typeof opts.commonGainDb === 'number' ? opts.commonGainDb : null;
   if (opts.commonGainDb === 'min-advised') {
-    const first = planSet(items, coil, driver, settings);
+    const first = planSet(items, coil, driver, settings, { safeGaps: false });
     const advised = first.items.map((i) => i.advisedGainDb);
     common = advised.some((a) => a === null) ? -Infinity : Math.min(...(advised as number[]));
   }
@@ -234,6 +234,7 @@ export function planSet(
       it.minSafeGapNote = 'the last item: nothing follows it';
       return;
     }
+    if (opts.safeGaps === false) return;
     const r = minSafeGapS(driver, coil, ends[i], items[i + 1].clip, out[i + 1].gainDb, settings);
     it.minSafeGapAfterS = r.gapS;
     it.minSafeGapNote = r.note;
