@@ -188,9 +188,9 @@ export class SetScreen extends LitElement {
                 if (Number.isFinite(v) && v >= 0 && v <= 86400) this.setGap(i, v);
               }} />
             <span class="unit">s</span>
-            ${r?.minGapAfterS != null
-              ? html`<button type="button" class="link" title="Set the gap to the shortest that lets the junctions cool to within 5 K of where this clip started"
-                  @click=${() => this.setGap(i, roundGapUpS(r.minGapAfterS!))}>shortest safe: ${roundGapUpS(r.minGapAfterS)} s</button>`
+            ${r?.minSafeGapAfterS != null && i < this.items.length - 1
+              ? html`<button type="button" class="link" title="Set the gap to the shortest after which the next clip keeps every limit at its gain"
+                  @click=${() => this.setGap(i, roundGapUpS(r.minSafeGapAfterS!))}>shortest safe: ${roundGapUpS(r.minSafeGapAfterS)} s</button>`
               : nothing}
           </span>
           <span class="move">
@@ -225,7 +225,7 @@ export class SetScreen extends LitElement {
               <td>${p ? formatDb(p.document.limiterCeilingDbfs, 'dBFS') : formatDb(-it.gainDb, 'dBFS')}</td>
               <td>${p ? preEmphasisWords(p.document) : '—'}</td>
               <td>${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C</td>
-              <td>${formatClock(it.gapAfterS)}${it.minGapAfterS != null && it.minGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minGapAfterS)} s)` : ''}</td>
+              <td>${formatClock(it.gapAfterS)}${it.minSafeGapAfterS != null && it.minSafeGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minSafeGapAfterS)} s)` : ''}</td>
             </tr>`;
           })}
         </tbody>

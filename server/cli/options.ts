@@ -70,7 +70,7 @@ export interface CommandOptions<T extends OptionTable = OptionTable> {
    * Checks between options (one requires or excludes another), run at the end of parsing with the
    * parsed values; returns the message of the first problem, or null.
    */
-  check?(values: Record<string, unknown>): string | null;
+  check?(values: Record<string, unknown>, positionals: readonly string[]): string | null;
 }
 
 type ValueOf<O> = O extends NumberOption
@@ -176,7 +176,7 @@ export function parseOptions<T extends OptionTable>(argv: readonly string[], c: 
     const spec = Object.hasOwn(c.options, name) ? c.options[name] : undefined;
     if (!spec) {
       const near = nearest(name, names);
-      throw bad(`unknown option ${eq >= 0 ? a.slice(0, eq) : a}${near ? `; did you mean --${near}?` : ''} Usage: ${usage}`);
+      throw bad(`unknown option ${eq >= 0 ? a.slice(0, eq) : a}${near ? `; did you mean --${near}?` : '.'} Usage: ${usage}`);
     }
     if (!a.startsWith('--')) throw bad(`options take two dashes: write --${name}. Usage: ${usage}`, name);
     if (Object.hasOwn(raw, name)) throw bad(`--${name} is given twice; give it once`, name);
@@ -233,7 +233,7 @@ export function parseOptions<T extends OptionTable>(argv: readonly string[], c: 
     throw bad(p.max === 0 ? `unexpected argument "${positionals[0]}"; every input is an option. Usage: ${usage}` : `give at most ${p.max} ${p.value}, got ${positionals.length}. Usage: ${usage}`);
   }
   if (positionals.length < p.min) throw bad(`give ${p.value} (${p.what}). Usage: ${usage}`);
-  const problem = c.check?.(values) ?? null;
+  const problem = c.check?.(values, positionals) ?? null;
   if (problem !== null) throw bad(`${problem}. Usage: ${usage}`);
   return { values: values as OptionValues<T>, positionals };
 }

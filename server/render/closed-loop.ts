@@ -16,6 +16,7 @@ import { FrameStatsStream } from '../../shared/dsp/frame-stats.ts';
 import { type MagnitudeHistogram, magnitudeHistogram } from '../../shared/dsp/histogram.ts';
 import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
 import { type Evaluation, type LimitCheck, type LimitName, type PlanClip, type PlanSettings, evaluateAtGain } from '../../shared/plan/evaluate.ts';
+import { limitLabel as sharedLimitLabel, limitValueText } from '../../shared/plan/limit-labels.ts';
 import type { PulseEvents } from '../../shared/plan/pulse-train.ts';
 import type { DeviceRole, DriverProfile } from '../../shared/schemas/driver.ts';
 
@@ -55,25 +56,12 @@ export interface ClosedLoopReport {
 export const CLOSED_LOOP_EXPLANATION =
   'The render was analysed and planned again at 0 dB: its gain is already inside the file, so played at unity its samples are the modulation (1.0 = the rail at its ends, or the longest on-time).';
 
-const LIMIT_WORDS: Record<LimitName, string> = {
-  'junction-temperature': 'junction temperature',
-  'over-modulation': 'over-modulation',
-  'supply-current': 'supply current',
-  'on-time': 'on-time',
-  duty: 'duty',
-  'switching-speed': 'switching speed',
-};
+/** "junction temperature (pass)", "pulses clamped by the duty limit", … (the planner's names, shared/plan/limit-labels.ts). */
+export const limitLabel = sharedLimitLabel;
 
-/** "junction temperature (pass)", "over-modulation", … */
-export function limitLabel(l: { limit: LimitName; role: DeviceRole | null }): string {
-  return `${LIMIT_WORDS[l.limit] ?? l.limit}${l.role ? ` (${l.role})` : ''}`;
-}
-
-/** A value in the limit's unit, as a person reads it: °C, % of time or pulses, A. */
-export function formatLimitValue(value: number, unit: LimitCheck['unit']): string {
-  if (unit === 'C') return `${value.toFixed(1)} °C`;
-  if (unit === 'A') return `${value.toFixed(2)} A`;
-  return `${(value * 100).toFixed(3)} %`;
+/** A value in the limit's unit, as a person reads it: °C, A, or a share with its base ("% of pulses"). */
+export function formatLimitValue(value: number, unit: LimitCheck['unit'], limit?: LimitName): string {
+  return limitValueText(value, unit, limit);
 }
 
 /**
@@ -212,7 +200,7 @@ export function closedLoopCheck(
     .filter((l) => !l.holds)
     .map((l) => {
       const when = l.atS === null ? '' : ` (at ${l.atS.toFixed(2)} s)`;
-      return `${limitLabel(l)} does NOT hold on the render: ${formatLimitValue(l.rendered, l.unit)} against ${formatLimitValue(l.allowed, l.unit)} allowed${when}; the plan said ${formatLimitValue(l.planned, l.unit)}.`;
+      return `${limitLabel(l)} does NOT hold on the render: ${formatLimitValue(l.rendered, l.unit, l.limit)} against ${formatLimitValue(l.allowed, l.unit)} allowed${when}; the plan said ${formatLimitValue(l.planned, l.unit, l.limit)}.`;
     });
   return {
     ok: limits.every((l) => l.holds),

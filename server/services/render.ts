@@ -11,6 +11,7 @@ import { limitLabel } from '../../shared/plan/limit-labels.ts';
 import { type LimitingNote, limitingNote } from '../../shared/plan/quality.ts';
 import { preEmphasisAdvice } from '../../shared/plan/report.ts';
 import { type ArcSound, type LevelTriple, arcSound } from '../../shared/preview/arc-sound.ts';
+import { type ModulationGrid, modulationGrid } from '../../shared/preview/grid.ts';
 import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
 import { ampToDb, finiteOrNull } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
@@ -245,7 +246,7 @@ const levelsDb = (l: LevelTriple) => ({
   rmsDbfs: finiteOrNull(ampToDb(l.rms)),
 });
 
-/** Everything `preview --json` prints: the modulation preview's grid and ranges (not every column) and the arc sound's levels. */
+/** Everything `preview --json` prints: the modulation preview's display grid and ranges, and the arc sound's levels. */
 export interface PreviewSummary {
   clip: string;
   out: string;
@@ -256,7 +257,14 @@ export interface PreviewSummary {
   scheme: string;
   gainDb: number;
   gainFrom: 'advised' | 'given';
-  modulation: Pick<ModulationPreview, 'columns' | 'framesPerColumn' | 'columnS' | 'range'> & { supplyVoltageV: number; fullPowerW: number };
+  modulation: Pick<ModulationPreview, 'columns' | 'framesPerColumn' | 'columnS' | 'range'> & {
+    supplyVoltageV: number;
+    fullPowerW: number;
+    /** Pulse scheme: the driver's longest on-time, s (the full scale of maxOnTimeS); null for rail schemes. */
+    maxOnTimeLimitS: number | null;
+    /** The display grid itself, per column (shared/preview/grid.ts). */
+    grid: ModulationGrid;
+  };
   arcSound: {
     cornerHz: number | null;
     pulseCount: number | null;
@@ -303,6 +311,8 @@ export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8A
       range: mod.range,
       supplyVoltageV: job.driver.supplyVoltageV,
       fullPowerW: job.driver.supplyVoltageV * job.driver.fullRailCurrentA,
+      maxOnTimeLimitS: job.driver.scheme === 'pulse' ? (job.driver.pulse?.maxOnTimeS ?? null) : null,
+      grid: modulationGrid(mod),
     },
     arcSound: {
       cornerHz: arc.cornerHz,

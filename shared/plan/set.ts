@@ -6,20 +6,32 @@
  * makes no pulses).
  *
  * Per item: the gain used (the item's own, a common gain, or advised for that item given the state
- * it starts in), its peak junction temperatures, whether every limit held, and the shortest gap
- * after it that brings every junction back within 5 K of where it started that clip (null when
- * idling never gets there, e.g. a linear pass device that idles hotter than it started).
+ * it starts in), its peak junction temperatures, whether every limit held, and two gaps:
+ * - `minSafeGapAfterS`: the shortest idle gap after this item after which the NEXT item, played at
+ *   its gain in this set, keeps every limit (0 when it does with no gap; null, with the reason,
+ *   only when no gap up to MAX_RECOVERY_GAP_S is enough: the next item fails even from the driver's
+ *   idle steady state, or fails a limit that no cooling helps). Found by bisection on whole tenths
+ *   of a second, re-planning the next item from the state the gap leaves (the same idle simulation
+ *   the set itself uses), so a re-plan with that gap passes and one with 0.1 s less fails.
+ * - `recoveryGapS`: the idle time after which every junction is within RECOVERED_WITHIN_K of the
+ *   driver's idle steady state at the set's ambient (`recoversToC`, the temperature each device
+ *   settles at while idling). A device that dissipates at idle (a linear pass device biased at half
+ *   the supply) settles above ambient: it never cools to ambient, so recovery is measured against
+ *   where it does settle. 0 when the clip ends within 5 K of that already (or below it).
  */
 import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
 import { adviseGain } from './advise.ts';
 import { type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain } from './evaluate.ts';
+import { limitLabel } from './limit-labels.ts';
 import { simulateSteady } from './steady.ts';
 
-/** Within this many kelvin of the start temperature counts as recovered (from the issue's definition). */
+/** Within this many kelvin of the idle steady state counts as recovered. */
 export const RECOVERED_WITHIN_K = 5;
-/** Longest gap searched for recovery, s. */
+/** Longest gap searched (recovery and safe gap), s. */
 export const MAX_RECOVERY_GAP_S = 3600;
+/** Idle frame of the gaps, s (the resolution of both gap figures). */
+export const GAP_FRAME_S = 0.1;
 
 export interface SetItemInput {
   clip: PlanClip;
@@ -40,8 +52,17 @@ export interface SetItemResult {
   ok: boolean;
   failing: LimitCheck[];
   gapAfterS: number;
-  /** Shortest idle gap after this clip that brings every junction within 5 K of its start, s. */
-  minGapAfterS: number | null;
+  /**
+   * Shortest idle gap after this item after which the next item keeps every limit at its gain, s
+   * (0: none needed; null: no gap up to MAX_RECOVERY_GAP_S is enough, or this is the last item; see minSafeGapNote).
+   */
+  minSafeGapAfterS: number | null;
+  /** Why minSafeGapAfterS is null, or what 0 means; null otherwise. */
+  minSafeGapNote: string | null;
+  /** Idle time after which every junction is within RECOVERED_WITHIN_K of recoversToC, s (null: longer than MAX_RECOVERY_GAP_S). */
+  recoveryGapS: number | null;
+  /** The idle steady state each device recovers toward at the set's ambient, °C. */
+  recoversToC: { role: DeviceRole; junctionC: number }[];
 }
 
 export interface SetResult {
@@ -51,6 +72,11 @@ export interface SetResult {
   items: SetItemResult[];
   /** Index of the first item at which a limit fails, or null. */
   firstFailingItem: number | null;
+  /** The junction temperature each device settles at while the driver idles at the set's ambient, °C. */
+  idleSteadyJunctionC: { role: DeviceRole; junctionC: number }[];
+  /** The recovery margin, K, and the longest gap searched, s. */
+  recoveredWithinK: number;
+  gapSearchBoundS: number;
 }
 
 /** Idle (silence) simulation of `durationS` from `initial`, on frames of `frameS`, with traces. */
@@ -59,20 +85,38 @@ function idle(driver: DriverProfile, coil: CoilAtResonance, initial: ThermalStat
 }
 
 /**
- * Shortest idle time after which every junction is within RECOVERED_WITHIN_K of `startC`
- * (per device), s, to one idle frame (0.1 s); null when MAX_RECOVERY_GAP_S is not enough.
+ * The junction temperature of every device once the driver has idled long enough to settle, °C, in
+ * the simulation's device order: an idle run from ambient over 30 of the slowest thermal time
+ * constants (the longest Foster τ, or the sink's (R_cs + R_sa)·C), where the exponential
+ * remainder e^−30 is below 1e-12 of the rise. A pulse driver idles without loss: ambient.
+ */
+export function idleSteadyJunctionC(driver: DriverProfile, coil: CoilAtResonance, ambientC: number): { role: DeviceRole; junctionC: number }[] {
+  let tauS = 1;
+  for (const d of driver.devices) {
+    for (const f of d.thermal.foster) tauS = Math.max(tauS, f.tauS);
+    tauS = Math.max(tauS, (d.thermal.caseToSinkKPerW + d.thermal.sinkToAmbientKPerW) * d.thermal.sinkHeatCapacityJPerK);
+  }
+  const durationS = 30 * tauS;
+  const sim = idle(driver, coil, undefined, durationS, ambientC, durationS / 3000);
+  return sim.devices.map((d, k) => ({ role: d.role, junctionC: ambientC + sim.finalState[k][0] }));
+}
+
+/**
+ * Shortest idle time after which every junction is within RECOVERED_WITHIN_K of `targetC` (per
+ * device: the idle steady state, idleSteadyJunctionC), s, to one idle frame (0.1 s); 0 when it is
+ * already; null when MAX_RECOVERY_GAP_S is not enough.
  */
 export function recoveryGapS(
   driver: DriverProfile,
   coil: CoilAtResonance,
   state: ThermalState[],
-  startC: number[],
+  targetC: number[],
   ambientC: number,
 ): number | null {
-  const recovered = (j: (d: number) => number) => startC.every((s, d) => j(d) <= s + RECOVERED_WITHIN_K);
+  const recovered = (j: (d: number) => number) => targetC.every((s, d) => j(d) <= s + RECOVERED_WITHIN_K);
   const junctionNow = (d: number) => ambientC + state[d][0];
   if (recovered(junctionNow)) return 0;
-  const frameS = 0.1;
+  const frameS = GAP_FRAME_S;
   const sim = idle(driver, coil, state, MAX_RECOVERY_GAP_S, ambientC, frameS);
   const n = sim.devices[0].traces!.junctionC.length;
   // Junction at the end of idle frame k. The pulse scheme's trace holds each frame's maximum, which in
@@ -85,6 +129,48 @@ export function recoveryGapS(
   return null;
 }
 
+/** The state after idling `gapS` from `end` (exactly as planSet carries it through a gap). */
+function afterGap(driver: DriverProfile, coil: CoilAtResonance, end: ThermalState[], gapS: number, ambientC: number): ThermalState[] {
+  return gapS > 0 ? idle(driver, coil, end, gapS, ambientC, GAP_FRAME_S).finalState : end;
+}
+
+/**
+ * Shortest gap after a clip that ended in `end` for `next` to keep every limit at `nextGainDb`
+ * (module comment), with the reason when there is none. Bisection on tenths of a second: assumes a
+ * longer gap never makes the next clip hotter (true while the devices cool toward an idle steady
+ * state below where the clip left them; when they are below it, the answer is 0 or none).
+ */
+export function minSafeGapS(
+  driver: DriverProfile,
+  coil: CoilAtResonance,
+  end: ThermalState[],
+  next: PlanClip,
+  nextGainDb: number,
+  settings: PlanSettings,
+): { gapS: number | null; note: string | null } {
+  const check = (gapS: number) => evaluateAtGain(next, coil, driver, nextGainDb, settings, { initial: afterGap(driver, coil, end, gapS, settings.ambientC) });
+  if (check(0).ok) return { gapS: 0, note: 'no gap needed: the next clip keeps every limit even if it starts at once' };
+  const atBound = check(MAX_RECOVERY_GAP_S);
+  if (!atBound.ok) {
+    const f = atBound.worst!;
+    const thermal = f.limit === 'junction-temperature';
+    return {
+      gapS: null,
+      note: thermal
+        ? `no gap up to ${MAX_RECOVERY_GAP_S} s is enough: even from the driver's idle steady state the next clip breaks ${limitLabel(f)} at its gain; lower its gain`
+        : `no gap helps: the next clip breaks ${limitLabel(f)} at its gain whatever the temperature; lower its gain`,
+    };
+  }
+  let lo = 0;
+  let hi = Math.round(MAX_RECOVERY_GAP_S / GAP_FRAME_S);
+  while (hi - lo > 1) {
+    const mid = Math.floor((lo + hi) / 2);
+    if (check(mid * GAP_FRAME_S).ok) hi = mid;
+    else lo = mid;
+  }
+  return { gapS: Math.round(hi * GAP_FRAME_S * 10) / 10, note: null };
+}
+
 /**
  * Plays a set (module comment). `commonGainDb`: 'min-advised' plays every item at the lowest of
  * the per-item advised gains; a number plays every item at that gain; undefined uses each item's
@@ -95,18 +181,20 @@ export function planSet(
   coil: CoilAtResonance,
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { commonGainDb?: number | 'min-advised' } = {},
+  opts: { commonGainDb?: number | 'min-advised'; /** Search the safe gaps (default true; the common-gain pre-pass skips them). */ safeGaps?: boolean } = {},
 ): SetResult {
   if (items.length === 0) throw new RangeError('planSet: the set has no items');
   let common: number | null = typeof opts.commonGainDb === 'number' ? opts.commonGainDb : null;
   if (opts.commonGainDb === 'min-advised') {
-    const first = planSet(items, coil, driver, settings);
+    const first = planSet(items, coil, driver, settings, { safeGaps: false });
     const advised = first.items.map((i) => i.advisedGainDb);
     common = advised.some((a) => a === null) ? -Infinity : Math.min(...(advised as number[]));
   }
   let state: ThermalState[] | undefined;
   let firstFailingItem: number | null = null;
   const out: SetItemResult[] = [];
+  const ends: ThermalState[][] = [];
+  const idleC = idleSteadyJunctionC(driver, coil, settings.ambientC);
   items.forEach((item, index) => {
     if (!(item.gapAfterS >= 0 && Number.isFinite(item.gapAfterS))) {
       throw new RangeError(`planSet: items[${index}].gapAfterS must be a finite number of seconds ≥ 0, got ${item.gapAfterS}`);
@@ -120,7 +208,7 @@ export function planSet(
     const roles = e.sim.devices.map((d) => d.role);
     const startC = roles.map((_, d) => settings.ambientC + (state ? state[d][0] : 0));
     const end = e.sim.finalState;
-    const minGapAfterS = recoveryGapS(driver, coil, end, startC, settings.ambientC);
+    ends.push(end);
     const failing = e.limits.filter((l) => !l.ok);
     if (failing.length && firstFailingItem === null) firstFailingItem = index;
     out.push({
@@ -133,9 +221,32 @@ export function planSet(
       ok: failing.length === 0,
       failing,
       gapAfterS: item.gapAfterS,
-      minGapAfterS,
+      minSafeGapAfterS: null,
+      minSafeGapNote: null,
+      recoveryGapS: recoveryGapS(driver, coil, end, idleC.map((x) => x.junctionC), settings.ambientC),
+      recoversToC: idleC,
     });
-    state = item.gapAfterS > 0 ? idle(driver, coil, end, item.gapAfterS, settings.ambientC, 0.1).finalState : end;
+    state = afterGap(driver, coil, end, item.gapAfterS, settings.ambientC);
   });
-  return { gainMode: common === null ? 'per-item' : 'common', commonGainDb: common, ambientC: settings.ambientC, items: out, firstFailingItem };
+  // The safe gap after each item, for the next item at the gain it is played at in this set.
+  out.forEach((it, i) => {
+    if (i + 1 === out.length) {
+      it.minSafeGapNote = 'the last item: nothing follows it';
+      return;
+    }
+    if (opts.safeGaps === false) return;
+    const r = minSafeGapS(driver, coil, ends[i], items[i + 1].clip, out[i + 1].gainDb, settings);
+    it.minSafeGapAfterS = r.gapS;
+    it.minSafeGapNote = r.note;
+  });
+  return {
+    gainMode: common === null ? 'per-item' : 'common',
+    commonGainDb: common,
+    ambientC: settings.ambientC,
+    items: out,
+    firstFailingItem,
+    idleSteadyJunctionC: idleC,
+    recoveredWithinK: RECOVERED_WITHIN_K,
+    gapSearchBoundS: MAX_RECOVERY_GAP_S,
+  };
 }

@@ -9,7 +9,7 @@ import { tooSlowLabel } from '../../../shared/physics/driver/transition.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
 import { writeFileAtomic } from '../../audio/wav.ts';
 import { type PlanDocument, jsonReplacer, loadPlanClip, planClipDocument } from '../../services/plan.ts';
-import { limitText } from '../../../shared/plan/limit-labels.ts';
+import { limitLabel, limitText } from '../../../shared/plan/limit-labels.ts';
 import { loadCoil, loadDriver } from '../../services/profiles.ts';
 import { readJsonFile } from '../../services/read-json.ts';
 import type { Command } from '../io.ts';
@@ -100,14 +100,37 @@ export function formatPlan(r: PlanDocument, coil: CoilReport, driver: DriverProf
   return out.join('\n') + '\n';
 }
 
+/** The readable answer for a set: per item its gain, temperatures and verdict, then the two gaps in plain words. */
 export function formatSet(s: SetResult): string {
+  const temps = (xs: { role: string; junctionC: number }[]) => xs.map((d) => `${d.role} ${f1(d.junctionC)} °C`).join(', ');
   const out = [`set of ${s.items.length} clips, ${s.gainMode === 'common' ? `common gain ${s.commonGainDb?.toFixed(1)} dB` : 'gain advised per clip given its starting temperature'}, ambient ${s.ambientC} °C`];
+  const idleWarm = s.idleSteadyJunctionC.filter((d) => d.junctionC > s.ambientC + 0.5);
+  out.push(
+    `idling between clips the driver settles at ${temps(s.idleSteadyJunctionC)}` +
+      (idleWarm.length
+        ? ` — ${idleWarm.map((d) => d.role).join(' and ')} ${idleWarm.length > 1 ? 'dissipate' : 'dissipates'} even with no music (the rail idles at half the supply), so ${idleWarm.length > 1 ? 'they never cool' : 'it never cools'} to ambient; recovery below is measured against this idle temperature`
+        : ' (no loss at idle: the devices cool toward ambient)'),
+  );
   s.items.forEach((it, i) => {
     out.push(
       `${String(i + 1).padStart(2)}. ${it.clip}: gain ${Number.isFinite(it.gainDb) ? it.gainDb.toFixed(1) : '-inf'} dB (advised ${it.advisedGainDb === null ? 'none safe' : it.advisedGainDb.toFixed(1)}), ` +
-        `starts ${it.startJunctionC.map((d) => `${d.role} ${f1(d.junctionC)} °C`).join(', ')}, peak ${f1(it.peakJunctionC)} °C, ${it.ok ? 'all limits hold' : `FAILS ${it.failing.map((l) => l.limit + (l.role ? ` (${l.role})` : '')).join(', ')}`}; ` +
-        `gap ${it.gapAfterS} s (shortest to recover within 5 K: ${it.minGapAfterS === null ? 'never while idling' : `${it.minGapAfterS.toFixed(1)} s`})`,
+        `starts ${temps(it.startJunctionC)}, peak ${f1(it.peakJunctionC)} °C, ${it.ok ? 'all limits hold' : `FAILS ${it.failing.map((l) => limitLabel(l)).join(', ')}`}`,
     );
+    const last = i + 1 === s.items.length;
+    const safe = last
+      ? 'last clip'
+      : it.minSafeGapAfterS === null
+        ? `no safe gap: ${it.minSafeGapNote}`
+        : it.minSafeGapAfterS === 0
+          ? 'shortest safe gap 0 s (the next clip keeps every limit even if it starts at once)'
+          : `shortest safe gap ${it.minSafeGapAfterS.toFixed(1)} s (the next clip keeps every limit at its gain only after this much idling)`;
+    const rec =
+      it.recoveryGapS === null
+        ? `not within ${s.recoveredWithinK} K of its idle temperature after ${s.gapSearchBoundS} s`
+        : it.recoveryGapS === 0
+          ? `0 s: the clip ends no more than ${s.recoveredWithinK} K above the idle temperature (${temps(it.recoversToC)}), so waiting would not cool it further`
+          : `back within ${s.recoveredWithinK} K of its idle temperature (${temps(it.recoversToC)}) after ${it.recoveryGapS.toFixed(1)} s`;
+    out.push(`    gap ${it.gapAfterS} s; ${safe}; recovery: ${rec}`);
   });
   out.push(s.firstFailingItem === null ? 'every clip keeps every limit' : `first failing clip: ${s.firstFailingItem + 1}`);
   return out.join('\n') + '\n';

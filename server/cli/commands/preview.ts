@@ -1,6 +1,7 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
-import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
+import { gridChart, gridCsv } from '../../../shared/preview/grid.ts';
+import { type WavSampleFormat, writeFileAtomic, writeWavAtomic } from '../../audio/wav.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type PreviewSummary, previewJob } from '../../services/render.ts';
 import { refuseOverwriteOfInput } from '../file-args.ts';
@@ -15,7 +16,7 @@ const num = (x: number | null, d: number): string => (x === null ? '—' : x.toF
 const dB = (x: number | null): string => (x === null ? '-inf' : x.toFixed(2));
 
 /** The readable report of a preview. */
-export function formatPreview(s: PreviewSummary): string {
+export function formatPreview(s: PreviewSummary, chartWidth = 72): string {
   const m = s.modulation;
   const r = m.range;
   const rows: [string, string][] = [
@@ -38,7 +39,8 @@ export function formatPreview(s: PreviewSummary): string {
       ? 'silence: the drive does not vary at this gain'
       : `${dB(a.output.samplePeakDbfs)} dBFS peak, ${dB(a.output.rmsDbfs)} dBFS RMS (source ${dB(a.source.samplePeakDbfs)} / ${dB(a.source.rmsDbfs)}; set by the source's ${a.limitedBy})`,
   ]);
-  return [`Preview on the coil (${s.scheme} scheme)`, ...alignRows(rows, '  '), s.caution, ''].join('\n');
+  const chart = gridChart(m.grid, { width: chartWidth, supplyV: m.supplyVoltageV, fullPowerW: m.fullPowerW, maxOnTimeS: m.maxOnTimeLimitS ?? undefined, durationS: s.durationS });
+  return [`Preview on the coil (${s.scheme} scheme)`, ...alignRows(rows, '  '), '', 'Over the clip (each cell the extreme of the columns it covers)', ...chart, '', s.caution, ''].join('\n');
 }
 
 /** `coilcue preview`: what the coil will make of a clip — the arc sound as a WAV, the modulation in figures. */
@@ -53,7 +55,8 @@ export const previewCommand: Command<typeof PREVIEW_OPTIONS.options> = {
     const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
     const { bytes, summary: s } = previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns });
     await writeWavAtomic(resolve(io.cwd, files.out), bytes);
-    io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatPreview(s));
+    if (values.trace !== undefined) await writeFileAtomic(resolve(io.cwd, values.trace), new TextEncoder().encode(gridCsv(s.modulation.grid)));
+    io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatPreview(s, values['chart-width']));
     return EXIT_OK;
   },
 };

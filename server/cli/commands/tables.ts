@@ -57,6 +57,11 @@ export const COIL_OPTIONS = defineCommand({
     'input-power-w': { type: 'number', what: 'mean input power, when known directly (overrides supply × current)', unit: 'W', min: 0, max: 1e6 },
     'wire-temp-c': { type: 'number', what: 'temperature of the secondary winding, for its resistance', unit: '°C', defaultText: '20', min: -50, max: 200 },
   },
+  check(v, positionals) {
+    if (v.demo !== undefined && positionals.length > 0) return 'give a profile file or --demo, not both';
+    if (v.demo === undefined && positionals.length === 0) return 'give exactly one coil profile file (or --demo <name>)';
+    return null;
+  },
 });
 
 export const PLAN_OPTIONS = defineCommand({

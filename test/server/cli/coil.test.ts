@@ -80,7 +80,7 @@ describe('coilcue coil', () => {
   it('a missing file or a file that is not JSON exits 2 with a clear message', async () => {
     const missing = await run('no-such-coil.json');
     expect(missing.code).toBe(2);
-    expect(missing.err).toMatch(/cannot read coil profile "no-such-coil\.json" \(no such file\); check the path/);
+    expect(missing.err).toMatch(/cannot read <coil\.json> "no-such-coil\.json" \(no such file\); check the path/);
     const notJson = await run(write('broken.json', '{ "name": '));
     expect(notJson.code).toBe(2);
     expect(notJson.err).toMatch(/is not valid JSON/);

@@ -101,3 +101,18 @@ describe('nearest', () => {
     expect(nearest('zzzzzz', ['plan', 'render'])).toBeNull();
   });
 });
+
+describe('README', () => {
+  it("lists every option of every command's table, and every exit code", async () => {
+    const { readFileSync } = await import('node:fs');
+    const readme = readFileSync(new URL('../../../README.md', import.meta.url), 'utf8');
+    const section = readme.slice(readme.indexOf('## Commands'), readme.indexOf('## Inputs'));
+    for (const [name, entry] of Object.entries(commands)) {
+      const row = section.split('\n').find((l) => l.startsWith(`| \`coilcue ${name}`));
+      expect(row, name).toBeDefined();
+      const rows = section.split('\n').filter((l) => l.startsWith(`| \`coilcue ${name}`)).join('\n');
+      for (const flag of Object.keys(entry.options.options)) expect(rows, `${name} --${flag}`).toContain(`--${flag}`);
+    }
+    for (const code of ['**0**', '**1**', '**2**', '**3**', '**130**']) expect(section).toContain(code);
+  });
+});

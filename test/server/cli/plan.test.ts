@@ -93,6 +93,19 @@ describe('coilcue plan (one clip)', () => {
     expect(text).toContain(r.cautions.keepOut);
   });
 
+  it('names heavy limiting as a quality note, apart from the verdict, with the gain at which it would not be', async () => {
+    const r = JSON.parse((await run('--clip', loud, '--coil', coil, '--driver', linear, '--gain-db', '13', '--json')).out) as PlanDocument;
+    expect(r.limiting.basis).toBe('estimated');
+    expect(r.limiting.heavy).toBe(true);
+    expect(r.limiting.deepShare).toBeGreaterThan(r.limiting.heavyShare);
+    expect(r.limiting.gainDbWithoutHeavyLimiting!).toBeLessThan(13);
+    const text = (await run('--clip', loud, '--coil', coil, '--driver', linear, '--gain-db', '13')).out;
+    expect(text).toContain(`Quality: ${r.limiting.note}`);
+    // At the suggested gain the note is gone.
+    const at = JSON.parse((await run('--clip', loud, '--coil', coil, '--driver', linear, '--gain-db', String(r.limiting.gainDbWithoutHeavyLimiting), '--json')).out) as PlanDocument;
+    expect(at.limiting.heavy).toBe(false);
+  });
+
   it('--trace writes the per-frame CSV', async () => {
     const { code } = await run('--clip', quiet, '--coil', coil, '--driver', linear, '--trace', 'trace.csv');
     expect(code).toBe(0);
@@ -139,7 +152,8 @@ describe('coilcue plan --set', () => {
     for (const it of s.items) {
       expect(typeof it.advisedGainDb).toBe('number');
       expect(typeof it.peakJunctionC).toBe('number');
-      expect(it).toHaveProperty('minGapAfterS');
+      expect(it).toHaveProperty('minSafeGapAfterS');
+      expect(it).toHaveProperty('recoveryGapS');
     }
     expect(s.items[1].gapAfterS).toBe(0);
   });

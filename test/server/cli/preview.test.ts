@@ -72,6 +72,23 @@ describe('coilcue preview', () => {
     expect(few.modulation.range.meanPowerW).toBeCloseTo(many.modulation.range.meanPowerW, 3);
   });
 
+  it('--json carries the display grid itself, --trace writes the same grid as CSV, and the text draws it', async () => {
+    const r = await run(...base, '--driver', 'pulse.json', '--out', 'grid.wav', '--columns', '50', '--trace', 'grid.csv', '--json');
+    expect(r.code).toBe(0);
+    const g = (JSON.parse(r.out) as PreviewSummary).modulation.grid;
+    expect(g.columns).toBe(50);
+    for (const k of ['timeS', 'pulseCount', 'maxOnTimeS', 'powerMeanW', 'powerMaxW'] as const) expect(g[k]).toHaveLength(50);
+    expect(g.railMinV).toBeNull();
+    expect(g.pulseCount!.reduce((a, b) => a + b, 0)).toBe((JSON.parse(r.out) as PreviewSummary).modulation.range.pulseCount);
+    const csv = readFileSync(join(dir, 'grid.csv'), 'utf8').trimEnd().split('\n');
+    expect(csv[0]).toBe('timeS,pulseCount,maxOnTimeS,powerMeanW,powerMaxW');
+    expect(csv).toHaveLength(51);
+    expect(csv[7].split(',').map(Number)).toEqual([g.timeS[6], g.pulseCount![6], g.maxOnTimeS![6], g.powerMeanW[6], g.powerMaxW[6]]);
+    const text = (await run(...base, '--driver', 'linear.json', '--out', 'grid2.wav', '--chart-width', '30')).out;
+    expect(text).toMatch(/rail highest \(0…48 V\)\s+│[ ▁▂▃▄▅▆▇█]{30}│/);
+    expect(text).toMatch(/power mean \(0…144 W\)\s+│[ ▁▂▃▄▅▆▇█]{30}│/);
+  });
+
   it('bad input: exit 2, one line, no file', async () => {
     for (const [args, re] of [
       [['--driver', 'linear.json', '--out', 'x.wav', '--columns', '0'], /--columns must be at least 1/],

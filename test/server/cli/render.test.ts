@@ -90,6 +90,28 @@ describe('coilcue render', () => {
     expect(existsSync(join(dir, 'kept.wav'))).toBe(true);
   });
 
+  it('names heavy limiting as a quality note apart from the safety verdict, with a gain that avoids it; cautions beside the advice', async () => {
+    const { code, out } = await run(...base, '--driver', 'linear.json', '--out', 'squashed.wav', '--gain-db', '13', '--ceiling-dbfs', '0', '--keep-unsafe', '--json');
+    expect([0, 3]).toContain(code);
+    const s = JSON.parse(out) as RenderSummary;
+    expect(s.limiting!.basis).toBe('measured');
+    expect(s.limiting!.deepShare).toBeCloseTo(s.limiter!.deepFraction, 12);
+    expect(s.limiting!.heavy).toBe(true);
+    expect(s.limiting!.gainDbWithoutHeavyLimiting!).toBeLessThan(13);
+    expect(s.limiting!.note).toMatch(/sound squashed\. This is about sound, not safety\. At about -?\d+\.\d dB it would not be/);
+    const text = (await run(...base, '--driver', 'linear.json', '--out', 'squashed2.wav', '--gain-db', '13', '--keep-unsafe')).out;
+    expect(text).toContain(`Quality: ${s.limiting!.note}`);
+    // Cautions where the risk is: the profile, what is estimated and how to measure it, interlock and emergency stop by the keep-out.
+    expect(s.cautions.profile).toMatch(/only if the coil and driver profiles are right/);
+    expect(s.cautions.estimated.some((e) => /coil resonance: computed from the geometry/.test(e))).toBe(true);
+    expect(s.cautions.keepOut).toMatch(/keep-out distance \(\d+\.\d\d m from the top load\).*interlock.*emergency stop/);
+    expect(text).toContain(s.cautions.keepOut);
+    // A pulse render describes 0 dBFS as the longest on-time.
+    const pulse = await run(...base, '--driver', 'pulse.json', '--out', 'pl.wav');
+    expect(pulse.out).toMatch(/0 dBFS = the longest on-time/);
+    expect(pulse.out).toMatch(/pulses clamped by the duty limit\s+\d+\.\d{3} % of pulses/);
+  });
+
   it("applies the plan's advised pre-emphasis by default and says so; a number overrides it, 0 turns it off", async () => {
     const auto = JSON.parse((await run(...base, '--driver', 'linear.json', '--out', 'auto.wav', '--json')).out) as RenderSummary;
     const planned = JSON.parse((await run('plan', '--clip', 'tune.wav', '--coil', 'coil.json', '--driver', 'linear.json', '--json')).out) as { preEmphasis: { advised: boolean; shelfGainDb: number } };

@@ -3,7 +3,7 @@ import { simulatePulses } from '../../../shared/physics/driver/simulate-pulses.t
 import { simulateRail } from '../../../shared/physics/driver/simulate-rail.ts';
 import { adviseGain } from '../../../shared/plan/advise.ts';
 import { evaluateAtGain, planSettings } from '../../../shared/plan/evaluate.ts';
-import { RECOVERED_WITHIN_K, planSet, recoveryGapS } from '../../../shared/plan/set.ts';
+import { MAX_RECOVERY_GAP_S, RECOVERED_WITHIN_K, idleSteadyJunctionC, minSafeGapS, planSet, recoveryGapS } from '../../../shared/plan/set.ts';
 import { COIL, linearDriver, mosfet, planClip, pulseDriver, tone } from './fixtures.ts';
 
 // Invented drivers (fixtures.ts). The pulse scheme idles with no loss, so its junctions cool back
@@ -70,11 +70,14 @@ describe('planSet: thermal state carries from clip to clip', () => {
   });
 });
 
-describe('planSet: minGapAfterS', () => {
-  it('is the idle time after which every junction is back within 5 K of its start (checked by simulating the gap)', () => {
+describe('planSet: recoveryGapS', () => {
+  it('is the idle time after which every junction is back within 5 K of its idle steady state (ambient for a pulse driver; checked by simulating the gap)', () => {
     const s = planSettings(WARMING);
     const set = planSet([{ clip: PULSE_CLIP, gapAfterS: 0, gainDb: 0 }], COIL, WARMING, s);
-    const gap = set.items[0].minGapAfterS!;
+    // A pulse driver idles without loss: it settles at ambient.
+    expect(set.idleSteadyJunctionC).toEqual([{ role: 'bridge', junctionC: 25 }]);
+    expect(set.items[0].recoversToC).toEqual(set.idleSteadyJunctionC);
+    const gap = set.items[0].recoveryGapS!;
     expect(gap).toBeGreaterThan(1);
     // Independently: the end state of the clip from cold, then the pulse scheme idling (no pulses).
     const end = evaluateAtGain(PULSE_CLIP, COIL, WARMING, 0, s).sim.finalState;
@@ -101,15 +104,64 @@ describe('planSet: minGapAfterS', () => {
     expect(recoveryGapS(WARMING, COIL, end, [25], 25)).toBe(0);
   });
 
-  it('is null when idling keeps a linear pass device warm', () => {
-    // The pass device starts the first clip at ambient but idles at 25 + 36·1.5 = 79 °C: never within 5 K.
-    const set = planSet([{ clip: TONE(0.5), gapAfterS: 0, gainDb: 0 }], COIL, LINEAR, planSettings(LINEAR));
-    expect(set.items[0].minGapAfterS).toBeNull();
-    // Confirm by idling for an hour at half rail from the clip's end state.
-    const end = evaluateAtGain(TONE(0.5), COIL, LINEAR, 0, planSettings(LINEAR)).sim.finalState;
+  it('measures a linear pass device against the temperature it idles at, not against ambient', () => {
+    // The pass device idles at half the supply: g·V_s²/4 = 36 W on 1.5 K/W, 25 + 54 = 79 °C. It never
+    // comes back within 5 K of ambient, but it does settle at its idle temperature.
+    const s = planSettings(LINEAR);
+    const idleC = idleSteadyJunctionC(LINEAR, COIL, 25);
+    const pass = idleC.find((d) => d.role === 'pass')!;
+    expect(pass.junctionC).toBeCloseTo(79, 3);
+    // Confirm by idling for an hour at half rail from ambient.
     const n = 3600;
-    const idle = simulateRail(LINEAR, COIL, { frameS: 1, meanV: new Float64Array(n).fill(24), meanSquareV2: new Float64Array(n).fill(576) }, { initial: end });
-    expect(25 + idle.finalState[1][0]).toBeCloseTo(79, 6);
+    const hour = simulateRail(LINEAR, COIL, { frameS: 1, meanV: new Float64Array(n).fill(24), meanSquareV2: new Float64Array(n).fill(576) });
+    idleC.forEach((d, k) => expect(d.junctionC).toBeCloseTo(25 + hour.finalState[k][0], 6));
+    const set = planSet([{ clip: TONE(0.5), gapAfterS: 0, gainDb: 0 }], COIL, LINEAR, s);
+    const it0 = set.items[0];
+    expect(it0.recoversToC).toEqual(idleC);
+    expect(it0.recoveryGapS).not.toBeNull();
+    // Independently: idle from the clip's end for that long; every junction is within 5 K of its idle temperature.
+    const end = evaluateAtGain(TONE(0.5), COIL, LINEAR, 0, s).sim.finalState;
+    const m = Math.round(it0.recoveryGapS! / 0.1);
+    const after = simulateRail(LINEAR, COIL, { frameS: 0.1, meanV: new Float64Array(Math.max(1, m)).fill(24), meanSquareV2: new Float64Array(Math.max(1, m)).fill(576) }, { initial: end });
+    idleC.forEach((d, k) => expect(25 + (m > 0 ? after.finalState[k][0] : end[k][0])).toBeLessThanOrEqual(d.junctionC + RECOVERED_WITHIN_K + 1e-9));
+  });
+});
+
+describe('planSet: minSafeGapAfterS', () => {
+  it('is the shortest gap after which the next item keeps every limit at its gain: a re-plan with it passes, with 1 s less fails', () => {
+    // The slow sink: the same clip at the same gain fails when it starts warm (see above).
+    const s = planSettings(SLOW);
+    const g = adviseGain(PULSE_CLIP, COIL, SLOW, s).advisedGainDb!;
+    const tight = planSet([{ clip: PULSE_CLIP, gapAfterS: 0, gainDb: g }, { clip: PULSE_CLIP, gapAfterS: 0, gainDb: g }], COIL, SLOW, s);
+    expect(tight.items[1].ok).toBe(false);
+    const gap = tight.items[0].minSafeGapAfterS!;
+    expect(gap).toBeGreaterThan(1);
+    expect(gap).toBeLessThan(MAX_RECOVERY_GAP_S);
+    expect(tight.items[0].minSafeGapNote).toBeNull();
+    const replan = (gapS: number) => planSet([{ clip: PULSE_CLIP, gapAfterS: gapS, gainDb: g }, { clip: PULSE_CLIP, gapAfterS: 0, gainDb: g }], COIL, SLOW, s);
+    expect(replan(gap).items[1].ok).toBe(true);
+    expect(replan(gap - 1).items[1].ok).toBe(false);
+    // Found to one idle frame (0.1 s).
+    expect(replan(gap - 0.1).items[1].ok).toBe(false);
+    // The last item has nothing after it.
+    expect(tight.items[1].minSafeGapAfterS).toBeNull();
+    expect(tight.items[1].minSafeGapNote).toMatch(/last item/);
+  });
+
+  it('is 0 when the next item keeps every limit with no gap', () => {
+    const s = planSettings(WARMING);
+    const set = planSet([{ clip: PULSE_CLIP, gapAfterS: 0, gainDb: -20 }, { clip: PULSE_CLIP, gapAfterS: 0, gainDb: -20 }], COIL, WARMING, s);
+    expect(set.items[0].minSafeGapAfterS).toBe(0);
+    expect(set.items[0].minSafeGapNote).toMatch(/no gap needed/);
+  });
+
+  it('is null, with the reason, when no gap is enough: the next item fails even from the idle steady state', () => {
+    const s = planSettings(SLOW);
+    const g = adviseGain(PULSE_CLIP, COIL, SLOW, s).advisedGainDb!;
+    const end = evaluateAtGain(PULSE_CLIP, COIL, SLOW, g, s).sim.finalState;
+    const r = minSafeGapS(SLOW, COIL, end, PULSE_CLIP, g + 6, s);
+    expect(r.gapS).toBeNull();
+    expect(r.note).toMatch(/no gap (up to 3600 s is enough|helps)/);
   });
 });
 
