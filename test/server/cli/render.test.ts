@@ -52,7 +52,7 @@ describe('coilcue render', () => {
     expect(s.levels.render.truePeakDbtp!).toBeLessThanOrEqual(0);
     expect(s.closedLoop.ok).toBe(true);
     expect(s.closedLoop.gainDbApplied).toBe(0);
-    expect(s.closedLoop.limits.map((l) => l.limit)).toEqual(['junction-temperature', 'over-modulation', 'supply-current', 'on-time', 'duty']);
+    expect(s.closedLoop.limits.map((l) => l.limit)).toEqual(['junction-temperature', 'over-modulation', 'supply-current', 'on-time', 'duty', 'switching-speed']);
     expect(s.caution).toContain(CAUTION);
     const bytes = new Uint8Array(readFileSync(join(dir, 'p.wav')));
     expect(new DataView(bytes.buffer).getUint16(34, true)).toBe(24); // bits per sample in the fmt chunk
