@@ -12,7 +12,9 @@
  * 3. bisection between that gain and the failing one 1 dB above it, to 0.1 dB.
  * A feasible window narrower than 1 dB lying above a failing grid point can be missed; the scan
  * step is the stated resolution of that claim. When no gain down to −60 dB is safe, the answer says
- * so and evaluates silence: if a device overheats even then, the driver itself is unsafe.
+ * so and evaluates silence: if a device overheats even then, the driver itself is unsafe. A device too
+ * slow for its switching frequency (the switching-speed limit) fails every gain, so the scan stops at
+ * the first gain that shows it.
  */
 import type { CoilAtResonance, ThermalState } from '../physics/driver/types.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
@@ -96,6 +98,8 @@ export function adviseGain(
       break;
     }
     failAbove = p;
+    // A switch too slow for its frequency fails every gain (shared/plan/evaluate.ts): no need to scan on.
+    if (p.e?.worst?.limit === 'switching-speed') break;
   }
   if (!okProbe) {
     const silent = evaluateAtGain(clip, coil, driver, -Infinity, settings, { initial: opts.initial, scratch });

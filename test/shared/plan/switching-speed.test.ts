@@ -83,3 +83,16 @@ describe('switching speed in the advice', () => {
     expect(speed.value).toBeCloseTo(0.18, 10);
   });
 });
+
+describe('switching speed: the search stops at once', () => {
+  it('needs only a couple of evaluations to refuse a too-slow switch', () => {
+    const coil = { resonanceHz: 3.1e6, qualityFactor: 60 };
+    const d = driver(slowBjt);
+    const a = adviseGain(planClip('tone', tone(220, 0.3, 1)), coil, d, planSettings(d));
+    expect(a.advisedGainDb).toBeNull();
+    expect(a.binding!.limit).toBe('switching-speed');
+    expect(a.unsafeOnSilence).toBe(true);
+    // The first grid gain, then silence.
+    expect(a.evaluations).toBe(2);
+  });
+});
