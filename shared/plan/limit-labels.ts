@@ -54,7 +54,7 @@ export function limitValueText(value: number, unit: LimitCheck['unit'], limit?: 
 /** "pulses clamped by the duty limit: 0.123 % of pulses, allowed 0.100 %". */
 export function limitText(l: { limit: LimitName; role: DeviceRole | null; value: number; allowed: number; unit: LimitCheck['unit']; frequencyHz?: number }): string {
   if (l.limit === 'switching-speed') {
-    return `${limitLabel(l)}: transitions ${(l.value * 100).toFixed(1)} % of each cycle, allowed ${(l.allowed * 100).toFixed(0)} %`;
+    return `${limitLabel(l)}: transitions ${(l.value * 100).toFixed(1)} % of each cycle (at most ${(l.allowed * 100).toFixed(0)} %)`;
   }
   const allowed = limitValueText(l.allowed, l.unit).replace(/ of .*$/, '');
   return `${limitLabel(l)}: ${limitValueText(l.value, l.unit, l.limit)}, allowed ${allowed}`;

@@ -31,7 +31,7 @@ describe('coilcue demo', () => {
     expect(io.stdout.match(/binding limit: /g)).toHaveLength(4);
     // The small rig is bound by its own bipolar switch, which stands in free air.
     const small = io.stdout.slice(io.stdout.indexOf('on the small rig'));
-    expect(small).toMatch(/binding limit: junction-temperature \(bridge\)/);
+    expect(small).toMatch(/binding limit: junction temperature \(bridge\)/);
     expect(small).toMatch(/bridge\s+×1 .*transitions 15\.8 % of each cycle/);
     expect(io.stdout).toMatch(/set of 3 clips/);
     expect(io.stdout).toMatch(/Caution: /);
