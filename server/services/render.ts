@@ -288,7 +288,7 @@ export interface PreviewOptions {
 /** The arc-sound WAV and the modulation preview of a prepared job at the given (or advised) gain. */
 export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8Array; summary: PreviewSummary; modulation: ModulationPreview } {
   const choice = chooseGain(job.plan, job, o.gainDb);
-  const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: o.columns ?? DEFAULT_MAX_COLUMNS });
+  const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: o.columns ?? DEFAULT_MAX_COLUMNS, resonanceHz: job.coil.resonanceHz });
   const arc = arcSound(job.source, job.clip.sampleRate, job.driver, job.coil, choice.gainDb, {
     pulseEvents: job.plan.pulseEvents,
     peakMargin: quantisationMargin(o.format),

@@ -17,7 +17,7 @@ import { type Advice, adviseGain } from './advise.ts';
 import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './demand.ts';
 import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
-import { pulsesAtGain } from './pulse-train.ts';
+import { pulseLimitsFor, pulsesAtGain } from './pulse-train.ts';
 import { type DutyCycleFigures, dutyCycleFigures } from './duty-cycle.ts';
 import { limitLabel } from './limit-labels.ts';
 import { type LimitingNote, limitingNote } from './quality.ts';
@@ -241,7 +241,7 @@ function demandSeries(clip: PlanClip, coil: CoilAtResonance, driver: DriverProfi
   const n = clip.frames.count;
   const out = new Float64Array(n);
   if (driver.scheme === 'pulse' && clip.pulseEvents && driver.pulse) {
-    const train = pulsesAtGain(clip.pulseEvents, g, driver.pulse);
+    const train = pulsesAtGain(clip.pulseEvents, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
     const f = clip.frames.frameS;
     for (let i = 0; i < train.count; i++) {
       // Spread each pulse over the frames it covers, by frame index (stepping by time can stall
@@ -353,7 +353,7 @@ export function planClipReport(
     limits: evaluation.limits.map((l) => ({ ...l, label: limitLabel(l) })),
     dutyCycle:
       driver.scheme === 'pulse' && clip.pulseEvents && driver.pulse
-        ? dutyCycleFigures(pulsesAtGain(clip.pulseEvents, dbToAmp(demandGainDb), driver.pulse), clip.durationS, driver.pulse.maxDuty)
+        ? dutyCycleFigures(pulsesAtGain(clip.pulseEvents, dbToAmp(demandGainDb), pulseLimitsFor(driver.pulse, coil.resonanceHz)), clip.durationS, driver.pulse.maxDuty)
         : null,
     limiting: limitingNote(clip.histogram, Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity, 0),
     budget,

@@ -32,7 +32,7 @@
  */
 import { TRUE_PEAK_PHASES, channelTruePeakLinear, samplePeakLinear } from '../dsp/true-peak.ts';
 import type { CoilAtResonance } from '../physics/driver/types.ts';
-import { type PulseEvents, pulsesAtGain, zeroCrossingEvents } from '../plan/pulse-train.ts';
+import { type PulseEvents, pulseLimitsFor, pulsesAtGain, zeroCrossingEvents } from '../plan/pulse-train.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
 import { dbToAmp } from '../units.ts';
 
@@ -164,7 +164,8 @@ export function arcSound(
   } else {
     if (!driver.pulse) throw new RangeError('arcSound: the pulse scheme needs driver.pulse limits');
     const events = opts.pulseEvents ?? zeroCrossingEvents(source, sampleRate);
-    const train = pulsesAtGain(events, g, driver.pulse);
+    // Pulses shorter than the minimum on-time are dropped, as the planner drops them.
+    const train = pulsesAtGain(events, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
     pulseCount = train.count;
     for (let i = 0; i < train.count; i++) {
       const a = train.startS[i] * sampleRate;

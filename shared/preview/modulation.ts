@@ -20,7 +20,7 @@
  */
 import { frameStart } from '../dsp/frame-stats.ts';
 import { type PlanClip, createScratch, railAtGain } from '../plan/evaluate.ts';
-import { pulsesAtGain } from '../plan/pulse-train.ts';
+import { pulseLimitsFor, pulsesAtGain } from '../plan/pulse-train.ts';
 import type { DriverProfile, DriverScheme } from '../schemas/driver.ts';
 import { dbToAmp } from '../units.ts';
 
@@ -66,13 +66,15 @@ export interface ModulationPreview {
 /**
  * Builds the modulation preview of `clip` on `driver` at `gainDb` (module comment for the models).
  * Throws RangeError for a non-finite gain (−Infinity is allowed: silence), maxColumns < 1, or a
- * pulse-scheme driver without pulse limits or a clip without pulse events.
+ * pulse-scheme driver without pulse limits, a clip without pulse events, or no resonance.
  *
  * @param clip  the planner's view (shared/plan/plan-clip.ts toPlanClip)
  * @param opts.maxColumns  most display columns (default 4000)
+ * @param opts.resonanceHz  the coil's resonance, Hz: the pulse scheme drops pulses shorter than the
+ *   minimum on-time as the planner does (pulseLimitsFor: the profile's, else a few RF cycles)
  * @example modulationPreview(plan, DEMO_DRIVER_LINEAR, -3).rail!.maxV[0] // V, ≤ 48
  */
-export function modulationPreview(clip: PlanClip, driver: DriverProfile, gainDb: number, opts: { maxColumns?: number } = {}): ModulationPreview {
+export function modulationPreview(clip: PlanClip, driver: DriverProfile, gainDb: number, opts: { maxColumns?: number; resonanceHz?: number } = {}): ModulationPreview {
   const maxColumns = opts.maxColumns ?? DEFAULT_MAX_COLUMNS;
   if (!(Number.isInteger(maxColumns) && maxColumns >= 1)) throw new RangeError(`modulationPreview: maxColumns must be an integer ≥ 1, got ${maxColumns}`);
   if (Number.isNaN(gainDb) || gainDb === Infinity) throw new RangeError(`modulationPreview: gainDb must be finite or −Infinity, got ${gainDb}`);
@@ -143,7 +145,8 @@ export function modulationPreview(clip: PlanClip, driver: DriverProfile, gainDb:
 
   if (!driver.pulse) throw new RangeError('modulationPreview: the pulse scheme needs driver.pulse limits');
   if (!clip.pulseEvents) throw new RangeError('modulationPreview: the pulse scheme needs clip.pulseEvents');
-  const train = pulsesAtGain(clip.pulseEvents, g, driver.pulse);
+  if (!(opts.resonanceHz !== undefined && opts.resonanceHz > 0)) throw new RangeError(`modulationPreview: the pulse scheme needs the coil's resonanceHz, got ${opts.resonanceHz}`);
+  const train = pulsesAtGain(clip.pulseEvents, g, pulseLimitsFor(driver.pulse, opts.resonanceHz));
   const count = new Uint32Array(columns);
   const maxOnS = new Float32Array(columns);
   const onS = new Float64Array(columns);

@@ -335,7 +335,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
     const toS = q.toS ? Number(q.toS) : j.plan.durationS;
     const columns = Number(q.columns ?? 1000);
     const whole = Math.min(j.plan.frames.count, Math.ceil((columns * j.plan.durationS) / Math.max(1e-3, toS - fromS)));
-    const m = modulationPreview(j.plan, j.driver, gainDb, { maxColumns: whole });
+    const m = modulationPreview(j.plan, j.driver, gainDb, { maxColumns: whole, resonanceHz: j.coil.resonanceHz });
     const idx: number[] = [];
     for (let c = 0; c < m.columns; c++) if (m.edgesS[c + 1] >= fromS && m.edgesS[c] <= toS) idx.push(c);
     const pick = <T extends ArrayLike<number>>(a: T | undefined | null) => (a ? idx.map((i) => a[i]) : null);

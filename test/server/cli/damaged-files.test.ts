@@ -49,7 +49,8 @@ function expectCleanEnd(r: Awaited<ReturnType<typeof run>>, what: string): void 
 
 describe('coilcue analyze on damaged files', () => {
   for (const name of ['wav-s16-stereo.wav', 'tone-44k1-stereo.flac', 'tone-48k-stereo.ogg', 'tone-44k1-stereo.mp3']) {
-    it(`${name}: three seeded damaged copies`, async () => {
+    // Three executable runs each; a generous limit, since only a hang can miss it on a busy machine.
+    it(`${name}: three seeded damaged copies`, { timeout: 180_000 }, async () => {
       const original = new Uint8Array(readFileSync(join(fixtures, name)));
       const copies = fc.sample(
         fc.oneof(

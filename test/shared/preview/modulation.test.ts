@@ -11,7 +11,7 @@ import { magnitudeHistogram } from '../../../shared/dsp/histogram.ts';
 import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
 import { createRng } from '../../../shared/demo/prng.ts';
 import type { PlanClip } from '../../../shared/plan/evaluate.ts';
-import { pulsesAtGain, zeroCrossingEvents } from '../../../shared/plan/pulse-train.ts';
+import { pulseLimitsFor, pulsesAtGain, zeroCrossingEvents } from '../../../shared/plan/pulse-train.ts';
 import { modulationPreview } from '../../../shared/preview/modulation.ts';
 import { dbToAmp } from '../../../shared/units.ts';
 
@@ -108,10 +108,13 @@ describe('pulse scheme', () => {
   const x = music(Math.round(1.5 * FS), 0.9, 11);
   const plan = planOf(x, true);
   const d = DEMO_DRIVER_PULSE; // 320 V × 12 A = 3840 W while on
+  // The demo coil's measured resonance: it sets the minimum on-time the planner applies (pulseLimitsFor).
+  const f0 = 318e3;
+  const limits = pulseLimitsFor(d.pulse!, f0);
 
   it('counts every pulse once and splits every on-time exactly between columns', () => {
-    const p = modulationPreview(plan, d, 0, { maxColumns: 50 });
-    const train = pulsesAtGain(plan.pulseEvents!, 1, d.pulse!);
+    const p = modulationPreview(plan, d, 0, { maxColumns: 50, resonanceHz: f0 });
+    const train = pulsesAtGain(plan.pulseEvents!, 1, limits);
     expect(p.rail).toBeNull();
     const counts = Array.from(p.pulses!.count);
     expect(counts.reduce((s, c) => s + c, 0)).toBe(train.count);
@@ -130,8 +133,8 @@ describe('pulse scheme', () => {
   });
 
   it('more gain, longer pulses (up to the limits), never more than the duty limit allows on average', () => {
-    const lo = modulationPreview(plan, d, -12, { maxColumns: 20 });
-    const hi = modulationPreview(plan, d, 0, { maxColumns: 20 });
+    const lo = modulationPreview(plan, d, -12, { maxColumns: 20, resonanceHz: f0 });
+    const hi = modulationPreview(plan, d, 0, { maxColumns: 20, resonanceHz: f0 });
     expect(hi.range.meanPowerW).toBeGreaterThan(lo.range.meanPowerW);
     expect(hi.range.maxOnS!).toBeLessThanOrEqual(d.pulse!.maxOnTimeS + 1e-15);
   });
