@@ -237,7 +237,7 @@ export class Store {
     try {
       return this.db.prepare(`DELETE FROM ${this.table(kind)} WHERE id = ?`).run(id).changes > 0;
     } catch (e) {
-      if ((e as { code?: string }).code === 'SQLITE_CONSTRAINT_FOREIGNKEY') throw new InUseError(`a set uses this ${kind}`);
+      if (String((e as { code?: string }).code).startsWith('SQLITE_CONSTRAINT') || /FOREIGN KEY/.test(String(e))) throw new InUseError(`a set uses this ${kind}`);
       throw e;
     }
   }
