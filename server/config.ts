@@ -37,6 +37,13 @@ export interface ServerConfig {
   logLevel: false | 'fatal' | 'error' | 'warn' | 'info' | 'debug';
 }
 
+/**
+ * Jobs at once by default: half the cores (at least one). One analysis already keeps two threads
+ * busy (server/analysis/analyze-parallel.ts), so a second one at once on two cores would only
+ * double the memory (≈ 250 MiB each for 5 minutes of stereo) without finishing either sooner.
+ */
+export const defaultJobThreads = (): number => Math.max(1, Math.floor(availableParallelism() / 2));
+
 const ROOT = resolve(new URL('..', import.meta.url).pathname);
 
 /** Defaults for everything but the data folder (tests give a temporary one). */
@@ -48,7 +55,7 @@ export function defaultConfig(dataDir: string, over: Partial<ServerConfig> = {})
     maxUploadBytes: 200e6,
     maxDurationS: 1200,
     jobTimeoutS: 600,
-    jobThreads: Math.max(1, availableParallelism()),
+    jobThreads: defaultJobThreads(),
     queueLimit: 16,
     rateLimitPerMinute: 600,
     bodyLimitBytes: 1 << 20,
@@ -84,7 +91,7 @@ function num(env: NodeJS.ProcessEnv, name: string, dflt: number, min: number, ma
 /**
  * Reads HOST, PORT, DATA_DIR, COILCUE_TOKEN, COILCUE_MAX_UPLOAD_MB, COILCUE_MAX_DURATION_S,
  * COILCUE_JOB_TIMEOUT_S, COILCUE_JOB_THREADS, COILCUE_QUEUE_LIMIT, COILCUE_RATE_LIMIT,
- * COILCUE_LOG (relative DATA_DIR against `cwd`). Throws ConfigError for a bad value, and for a
+ * COILCUE_LOG, COILCUE_DEMO=0 (no demo data) (relative DATA_DIR against `cwd`). Throws ConfigError for a bad value, and for a
  * non-loopback HOST with no access token (COILCUE_TOKEN or DATA_DIR/access-token).
  */
 export function configFromEnv(env: NodeJS.ProcessEnv, cwd: string): ServerConfig {
@@ -113,10 +120,11 @@ export function configFromEnv(env: NodeJS.ProcessEnv, cwd: string): ServerConfig
     maxUploadBytes: num(env, 'COILCUE_MAX_UPLOAD_MB', 200, 1, 4000, false, 'the largest upload in MB') * 1e6,
     maxDurationS: num(env, 'COILCUE_MAX_DURATION_S', 1200, 1, 7200, false, 'the longest clip in seconds'),
     jobTimeoutS: num(env, 'COILCUE_JOB_TIMEOUT_S', 600, 1, 86400, false, 'the time limit of one job in seconds'),
-    jobThreads: num(env, 'COILCUE_JOB_THREADS', cores, 1, cores, true, `the number of jobs run at once (at most the ${cores} cores)`),
+    jobThreads: num(env, 'COILCUE_JOB_THREADS', defaultJobThreads(), 1, cores, true, `the number of jobs run at once (at most the ${cores} cores)`),
     queueLimit: num(env, 'COILCUE_QUEUE_LIMIT', 16, 1, 10000, true, 'the most jobs waiting or running'),
     rateLimitPerMinute: num(env, 'COILCUE_RATE_LIMIT', 600, 0, 1e6, true, 'the requests per client per minute (0: no limit)'),
     token,
+    seedDemo: env.COILCUE_DEMO !== '0',
     logLevel: log === 'off' ? false : (log as ServerConfig['logLevel']),
   });
 }

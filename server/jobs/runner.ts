@@ -60,7 +60,7 @@ export class JobRunner {
     private readonly executor: JobExecutor,
     private readonly log: { warn(o: object, m: string): void; error(o: object, m: string): void },
   ) {
-    this.pool = new Piscina<Task, TaskResult>({ filename: WORKER, minThreads: 0, maxThreads: config.jobThreads, idleTimeout: 60_000 });
+    this.pool = new Piscina<Task, TaskResult>({ filename: WORKER, minThreads: 1, maxThreads: config.jobThreads, idleTimeout: 60_000 });
     this.events.setMaxListeners(0);
   }
 

@@ -17,6 +17,7 @@ import {
   RenderStartedSchema,
   problems,
 } from '../../shared/schemas/api.ts';
+import type { Advice } from '../../shared/plan/advise.ts';
 import type { CoilProfile } from '../../shared/schemas/coil.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import { makePlan, planAnalysisSettings, startAnalysis } from '../jobs/work.ts';
@@ -30,6 +31,8 @@ export const publicPlan = ({ settings: _s, ...p }: StoredPlan) => p;
 
 const routes: FastifyPluginAsyncTypebox = async (app) => {
   const { store } = app;
+  /** The gain search of each recently evaluated plan: a slider's next gains reuse it. */
+  const adviceCache = new Map<string, Advice>();
 
   /** The plan, its analysis's reductions and its clip's name; 404/409 when any is missing. */
   async function loaded(id: string) {
@@ -78,7 +81,11 @@ const routes: FastifyPluginAsyncTypebox = async (app) => {
     { schema: { summary: 'The plan at another gain, with junction temperatures, from the stored reductions', params: IdParams, body: EvaluateRequestSchema, response: { 200: EvaluateSchema, ...problems(400, 404, 409) } } },
     async (req) => {
       const { plan, reductions, name } = await loaded(req.params.id);
-      return evaluateStored(reductions, name, plan.coil as CoilProfile, plan.driver, plan.settings, req.body.gainDb, req.body.columns ?? 1000);
+      const { advice, ...out } = evaluateStored(reductions, name, plan.coil as CoilProfile, plan.driver, plan.settings, req.body.gainDb, req.body.columns ?? 1000, adviceCache.get(plan.id));
+      adviceCache.delete(plan.id);
+      adviceCache.set(plan.id, advice);
+      while (adviceCache.size > 16) adviceCache.delete(adviceCache.keys().next().value as string);
+      return out;
     },
   );
 

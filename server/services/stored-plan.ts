@@ -6,6 +6,7 @@
  */
 import type { ClipAnalysis } from '../../shared/analysis/analyze-clip.ts';
 import { frameStart } from '../../shared/dsp/frame-stats.ts';
+import type { Advice } from '../../shared/plan/advise.ts';
 import { type PlanClip, type PlanSettings, evaluateAtGain, planSettings } from '../../shared/plan/evaluate.ts';
 import type { PulseEvents } from '../../shared/plan/pulse-train.ts';
 import { type SetResult, planSet } from '../../shared/plan/set.ts';
@@ -41,10 +42,11 @@ export function storedPlanDocument(
   settings: PlanSettingsInput,
   gainDb: number | null,
   traces = false,
-): { document: PlanDocument; evaluation: ReturnType<typeof planClipDocument>['evaluation']; settings: PlanSettings } {
+  advice?: Advice,
+): ReturnType<typeof planClipDocument> & { settings: PlanSettings } {
   const report = coilReportFor(coil, driver);
   const s = planSettings(driver, settings);
-  const out = planClipDocument(planClipOf(r, name, driver), r.analysis, report, driver, s, { gainDb: gainDb ?? undefined, traces });
+  const out = planClipDocument(planClipOf(r, name, driver), r.analysis, report, driver, s, { gainDb: gainDb ?? undefined, traces, advice });
   return { ...out, settings: s };
 }
 
@@ -63,7 +65,11 @@ export function maxByColumns(series: ArrayLike<number>, frameS: number, columns:
   return { timeS, values };
 }
 
-/** The document at `gainDb` and the junction temperature of every device, on at most `columns` columns (maximum per column). */
+/**
+ * The document at `gainDb` and the junction temperature of every device, on at most `columns`
+ * columns (maximum per column). Pass the `advice` an earlier call returned for the same plan to
+ * skip the gain search (it does not depend on the gain asked for).
+ */
 export function evaluateStored(
   r: StoredReductions,
   name: string,
@@ -72,8 +78,9 @@ export function evaluateStored(
   settings: PlanSettingsInput,
   gainDb: number,
   columns: number,
-): { document: PlanDocument; temperatures: { timeS: number[]; devices: { role: string; junctionC: number[]; limitC: number; tjMaxC: number }[] } } {
-  const { document, evaluation, settings: s } = storedPlanDocument(r, name, coil, driver, settings, gainDb, true);
+  advice?: Advice,
+): { document: PlanDocument; advice: Advice; temperatures: { timeS: number[]; devices: { role: string; junctionC: number[]; limitC: number; tjMaxC: number }[] } } {
+  const { document, evaluation, settings: s, advice: a } = storedPlanDocument(r, name, coil, driver, settings, gainDb, true, advice);
   const frameS = r.analysis.frames.frameS;
   let timeS: number[] = [];
   const devices = evaluation.sim.devices.map((d) => {
@@ -83,7 +90,7 @@ export function evaluateStored(
     const p = driver.devices.find((x) => x.role === d.role)!;
     return { role: d.role, junctionC: red.values, limitC: p.tjMaxC - s.marginK, tjMaxC: p.tjMaxC };
   });
-  return { document, temperatures: { timeS, devices } };
+  return { document, advice: a, temperatures: { timeS, devices } };
 }
 
 /** A PlanClip cut to the frames that overlap [fromS, toS) (times in the cut start at 0). */
