@@ -76,8 +76,12 @@ async function run(task: Task): Promise<unknown> {
   const progress = reporter(task.port);
   switch (task.kind) {
     case 'analysis': {
-      const { analysis, source } = await loadAndAnalyze(task.clipPath, { channel: task.channel, frameS: task.frameS, onProgress: progress });
-      progress(0.99, 'storing');
+      const { analysis, source } = await loadAndAnalyze(task.clipPath, {
+        channel: task.channel,
+        frameS: task.frameS,
+        onProgress: (f, s) => progress(0.97 * f, s === 'done' ? 'analysed' : s),
+      });
+      progress(0.98, 'storing');
       const pulseEvents = zeroCrossingEvents(source, analysis.sampleRate);
       try {
         await writeFile(task.tmpPath, encodeReductions({ analysis, pulseEvents } satisfies StoredReductions));
