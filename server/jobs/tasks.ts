@@ -23,7 +23,7 @@ import { commitFile, removeQuietly } from '../storage/files.ts';
 import { encodeReductions, readReductions } from '../storage/reductions.ts';
 
 export type Task =
-  | { kind: 'analysis'; clipPath: string; channel: ModulationChannel; frameS: number; maxDurationS: number; tmpPath: string; finalPath: string; port?: MessagePort }
+  | { kind: 'analysis'; clipPath: string; channel: ModulationChannel; frameS: number; tmpPath: string; finalPath: string; port?: MessagePort }
   | { kind: 'plan'; reductionsPath: string; name: string; coil: CoilProfile; driver: DriverProfile; settings: PlanSettingsInput; gainDb: number | null; port?: MessagePort }
   | {
       kind: 'render' | 'preview';

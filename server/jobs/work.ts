@@ -79,7 +79,7 @@ export function executorFor(store: Store, paths: DataPaths): JobExecutor {
         const { tmpPath, finalPath } = runner.files('analyses', name);
         try {
           const out = (await runner.run(
-            { kind: 'analysis', clipPath: join(paths.clips, clip.sha256), channel: a.settings.channel, frameS: a.settings.frameMs / 1000, maxDurationS: 7200, tmpPath, finalPath },
+            { kind: 'analysis', clipPath: join(paths.clips, clip.sha256), channel: a.settings.channel, frameS: a.settings.frameMs / 1000, tmpPath, finalPath },
             payload.then ? (f, s) => progress(0.9 * f, s) : progress,
             job.id,
           )) as { summary: unknown };
@@ -154,7 +154,7 @@ export function executorFor(store: Store, paths: DataPaths): JobExecutor {
             const { tmpPath, finalPath } = runner.files('analyses', name);
             try {
               const out = (await runner.run(
-                { kind: 'analysis', clipPath: join(paths.clips, clip.sha256), channel: 'mix', frameS: 0.001, maxDurationS: 7200, tmpPath, finalPath },
+                { kind: 'analysis', clipPath: join(paths.clips, clip.sha256), channel: 'mix', frameS: 0.001, tmpPath, finalPath },
                 (f, s) => progress((0.8 * (k + f)) / set.items.length, `analysing ${clip.name}: ${s}`),
                 job.id,
               )) as { summary: unknown };
