@@ -83,6 +83,10 @@ export function executorFor(store: Store, paths: DataPaths): JobExecutor {
             payload.then ? (f, s) => progress(0.9 * f, s) : progress,
             job.id,
           )) as { summary: unknown };
+          if (!store.getAnalysis(a.id)) {
+            await runner.removeTemp(finalPath); // its clip was deleted while it ran
+            throw missing('clip', a.clipId);
+          }
           store.finishAnalysis(a.id, out.summary, name);
         } catch (e) {
           store.setAnalysisState(a.id, 'failed');
@@ -128,6 +132,10 @@ export function executorFor(store: Store, paths: DataPaths): JobExecutor {
             progress,
             job.id,
           )) as { summary: unknown; safe: boolean };
+          if (!store.getRender(r.id)) {
+            await runner.removeTemp(finalPath); // its plan or clip was deleted while it ran
+            throw missing('render', r.id);
+          }
           store.finishRender(r.id, out.summary, out.safe, name);
         } catch (e) {
           store.setRenderState(r.id, 'failed');
