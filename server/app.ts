@@ -20,6 +20,8 @@ export async function buildApp(config: ServerConfig): Promise<FastifyInstance> {
   const app = Fastify({
     logger: config.logLevel === false ? false : { level: config.logLevel },
     bodyLimit: config.bodyLimitBytes,
+    // Seeding the demo data synthesises three clips: seconds on a busy machine, more than the default 10 s allows.
+    pluginTimeout: 120_000,
     // Routes answer with plain JSON documents; the schemas describe them (OpenAPI) and check inputs.
     ajv: undefined,
   });
