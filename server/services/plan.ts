@@ -40,21 +40,26 @@ export type PlanDocument = PlanReport & { keepOut: ReturnType<typeof keepOutFigu
 /** JSON has no ±Infinity or NaN: write them as null. */
 export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v);
 
-/** The plan of one clip: the report at the given gain (or the advised one), and the evaluation behind it. */
+/**
+ * The plan of one clip: the report at the given gain (or the advised one), and the evaluation and
+ * gain search behind it. `opts.advice` reuses a gain search made earlier for the same clip, coil,
+ * driver and settings (the server's re-evaluation at another gain).
+ */
 export function planClipDocument(
   planClip: PlanClip,
   analysis: { spectrum: { welch: WelchSpectrum } },
   coil: CoilReport,
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { gainDb?: number; traces?: boolean } = {},
-): { document: PlanDocument; evaluation: Evaluation } {
-  const { report, evaluation } = planClipReport(planClip, coil, driver, settings, {
+  opts: { gainDb?: number; traces?: boolean; advice?: Advice } = {},
+): { document: PlanDocument; evaluation: Evaluation; advice: Advice } {
+  const { report, evaluation, advice } = planClipReport(planClip, coil, driver, settings, {
     gainDb: opts.gainDb,
     spectrum: analysis.spectrum.welch,
     traces: opts.traces ?? false,
+    advice: opts.advice,
   });
-  return { document: { ...report, keepOut: keepOutFigures(coil), cautions: planCautions(coil, driver) }, evaluation };
+  return { document: { ...report, keepOut: keepOutFigures(coil), cautions: planCautions(coil, driver) }, evaluation, advice };
 }
 
 /**

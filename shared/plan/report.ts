@@ -274,9 +274,11 @@ export function planClipReport(
   coil: CoilAtResonance & { modulationCornerHz: number; modulationCornerRangeHz?: CornerRangeHz },
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { gainDb?: number; spectrum?: WelchSpectrum; initial?: ThermalState[]; traces?: boolean } = {},
+  opts: { gainDb?: number; spectrum?: WelchSpectrum; initial?: ThermalState[]; traces?: boolean; advice?: Advice } = {},
 ): { report: PlanReport; advice: Advice; evaluation: Evaluation } {
-  const advice = adviseGain(clip, coil, driver, settings, { initial: opts.initial });
+  // `advice`: a gain search already made for this very clip, coil, driver, settings and initial
+  // state (a re-evaluation at another gain reuses it: it does not depend on the gain asked for).
+  const advice = opts.advice ?? adviseGain(clip, coil, driver, settings, { initial: opts.initial });
   const evaluatedGainDb = opts.gainDb ?? advice.advisedGainDb ?? advice.atAdvised.gainDb;
   const evaluation =
     opts.gainDb === undefined && !opts.traces && advice.advisedGainDb !== null
