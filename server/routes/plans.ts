@@ -101,7 +101,7 @@ const routes: FastifyPluginAsyncTypebox = async (app) => {
       const fromS = Math.min(q.fromS ?? 0, durationS);
       const toS = Math.min(q.toS ?? durationS, durationS);
       if (!(toS > fromS)) throw new HttpError(400, 'bad-range', `toS (${toS}) must be greater than fromS (${fromS}) within the clip's ${durationS.toFixed(1)} s`, 'toS');
-      return modulationStored(reductions, plan.driver, gainDb, q.columns ?? 1000, fromS, toS);
+      return modulationStored(reductions, plan.coil as CoilProfile, plan.driver, gainDb, q.columns ?? 1000, fromS, toS);
     },
   );
 

@@ -126,11 +126,14 @@ export function sliceClip(clip: PlanClip, fromS: number, toS: number): { clip: P
   return { clip: out, offsetS };
 }
 
-/** The modulation preview of a stored analysis on the grid a display asks for (docs/api.md). */
-export function modulationStored(r: StoredReductions, driver: DriverProfile, gainDb: number, columns: number, fromS: number, toS: number) {
+/**
+ * The modulation preview of a stored analysis on the grid a display asks for (docs/api.md), on the
+ * plan's coil (its resonance sets the pulse scheme's minimum on-time, as in the plan).
+ */
+export function modulationStored(r: StoredReductions, coil: CoilProfile, driver: DriverProfile, gainDb: number, columns: number, fromS: number, toS: number) {
   const whole = planClipOf(r, '', driver);
   const { clip, offsetS } = sliceClip(whole, fromS, toS);
-  const m: ModulationPreview = modulationPreview(clip, driver, gainDb, { maxColumns: columns });
+  const m: ModulationPreview = modulationPreview(clip, driver, gainDb, { maxColumns: columns, resonanceHz: coilReportFor(coil, driver).resonanceHz });
   const edges = Array.from(m.edgesS, (t) => t + offsetS);
   return {
     scheme: driver.scheme,
