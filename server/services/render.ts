@@ -52,7 +52,8 @@ export interface RenderSummary {
     promiseKept: boolean;
     gainDbApplied: 0;
     explanation: string;
-    limits: ClosedLoopReport['limits'];
+    /** Every limit, planned against rendered, with the name a person reads (the plan's `label`). */
+    limits: (ClosedLoopReport['limits'][number] & { label: string })[];
     failures: string[];
   };
   /**
@@ -109,7 +110,7 @@ function renderSummary(
       promiseKept: loop.promiseKept,
       gainDbApplied: 0,
       explanation: loop.explanation,
-      limits: loop.limits,
+      limits: loop.limits.map((l) => ({ ...l, label: limitLabel(l) })),
       failures: loop.failures,
     },
     safe: loop.ok,

@@ -1,17 +1,14 @@
-import { InputError } from '../../../shared/errors.ts';
 import { DEMO_COIL_NAMES, DEMO_COILS } from '../../../shared/demo/coils.ts';
 import { COIL_OPTIONS } from './tables.ts';
 import { analyzeCoil, type CoilDriveContext, type CoilReport } from '../../../shared/physics/coil/analyze.ts';
 import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
 import { msToS } from '../../../shared/units.ts';
 import { EXIT_OK, type Command } from '../io.ts';
-import { usageLine } from '../options.ts';
 import { readJsonFile } from '../../services/read-json.ts';
 import { formatEng } from '../format.ts';
 
 export { formatEng };
 
-const USAGE = usageLine(COIL_OPTIONS);
 
 const pct = (x: number | null): string => (x === null ? '—' : `${x >= 0 ? '+' : ''}${x.toFixed(1)} %`);
 const num3 = (x: number | null): string => (x === null ? '—' : Math.abs(x) >= 1000 ? Math.round(x).toString() : x.toPrecision(3));
@@ -105,11 +102,7 @@ export function formatCoilReport(r: CoilReport): string {
 export const coilCommand: Command<typeof COIL_OPTIONS.options> = {
   options: COIL_OPTIONS,
   async run({ values, positionals }, io): Promise<number> {
-    const demo = values.demo;
-    if (demo !== undefined && positionals.length > 0) throw new InputError('bad-arguments', `give a profile file or --demo, not both. Usage: ${USAGE}`);
-    if (demo === undefined && positionals.length !== 1) {
-      throw new InputError('bad-arguments', `give exactly one coil profile file (or --demo ${DEMO_COIL_NAMES.join('|')}). Usage: ${USAGE}`);
-    }
+    const demo = values.demo; // a file or --demo, never both nor neither: checked with the options (tables.ts)
     const drive: CoilDriveContext = {};
     const supply = values['supply-v'];
     const rail = values['rail-current-a'];

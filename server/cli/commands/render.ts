@@ -1,6 +1,5 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
-import { InputError } from '../../../shared/errors.ts';
 import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
 import { limitLabel, limitValueText } from '../../../shared/plan/limit-labels.ts';
 import { prepareJob } from '../../services/plan.ts';
@@ -78,7 +77,6 @@ export const renderCommand: Command<typeof RENDER_OPTIONS.options> = {
     const channel: ModulationChannel = values.channel;
     const shelfDb = values['pre-emphasis-db'];
     const shelfHz = values['pre-emphasis-hz'];
-    if (shelfHz !== undefined && shelfDb === 0) throw new InputError('bad-arguments', '--pre-emphasis-hz sets the corner of a shelf that --pre-emphasis-db 0 turns off: drop one of them', 'pre-emphasis-hz');
 
     const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
     const { bytes, summary: s } = await renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] });

@@ -126,6 +126,8 @@ export const RENDER_OPTIONS = defineCommand({
     'keep-unsafe': { type: 'flag', what: 'keep the file even when the re-plan of the render breaks a promised limit (exit code 3 all the same)' },
     json: JSON_OUT,
   },
+  check: (v) =>
+    v['pre-emphasis-hz'] !== undefined && v['pre-emphasis-db'] === 0 ? '--pre-emphasis-hz sets the corner of a shelf that --pre-emphasis-db 0 turns off: drop one of them' : null,
 });
 
 export const PREVIEW_OPTIONS = defineCommand({

@@ -3,7 +3,7 @@
  * against values computed by hand for a four-frame signal, its CSV, and the block-character chart.
  */
 import { describe, expect, it } from 'vitest';
-import { DEMO_DRIVER_LINEAR } from '../../../shared/demo/drivers.ts';
+import { DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
 import { computeFrameStats } from '../../../shared/dsp/frame-stats.ts';
 import { magnitudeHistogram } from '../../../shared/dsp/histogram.ts';
 import type { PlanClip } from '../../../shared/plan/evaluate.ts';
@@ -41,6 +41,27 @@ describe('modulationGrid', () => {
 
   it('writes the same grid as CSV, one row per column', () => {
     expect(gridCsv(g)).toBe('timeS,railMinV,railMaxV,powerMeanW,powerMaxW\n0,20,30,32.5,45\n0.002,0,40,35.625,40\n');
+  });
+});
+
+describe('modulationGrid, pulse scheme', () => {
+  it('carries per column the pulse count, the longest on-time and the power, as computed by hand', () => {
+    // Three pulse instants at 0.5, 1.2 and 3.1 ms with levels 0.5, 1 and 0.25; at 0 dB the on-time is
+    // 100 µs × level: 50, 100 and 25 µs (no limit binds: no off-time, duty up to 1). 100 V × 10 A = 1 kW full power.
+    const driver = { ...DEMO_DRIVER_PULSE, supplyVoltageV: 100, fullRailCurrentA: 10, pulse: { maxOnTimeS: 100e-6, minOffTimeS: 0, maxDuty: 1 } };
+    const pulsed: PlanClip = {
+      ...clip,
+      pulseEvents: { mode: 'zero-crossing', timeS: Float64Array.of(0.0005, 0.0012, 0.0031), level: Float32Array.of(0.5, 1, 0.25), durationS: clip.durationS },
+    };
+    const g = modulationGrid(modulationPreview(pulsed, driver, 0, { maxColumns: 2 }));
+    // column 0 (0…2 ms): 2 pulses, longest 100 µs, mean power (150 µs / 2 ms)·1000 W = 75 W;
+    // column 1 (2…4 ms): 1 pulse of 25 µs, mean (25 µs / 2 ms)·1000 W = 12.5 W; highest: 1000 W while a pulse is on.
+    expect(g.pulseCount).toEqual([2, 1]);
+    g.maxOnTimeS!.forEach((v, j) => expect(v).toBeCloseTo([100e-6, 25e-6][j], 10));
+    g.powerMeanW.forEach((v, j) => expect(v).toBeCloseTo([75, 12.5][j], 3));
+    expect(g.powerMaxW).toEqual([1000, 1000]);
+    expect(g.railMinV).toBeNull();
+    expect(gridCsv(g).split('\n')[0]).toBe('timeS,pulseCount,maxOnTimeS,powerMeanW,powerMaxW');
   });
 });
 
