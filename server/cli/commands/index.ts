@@ -42,7 +42,6 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./coil.ts') as typeof import('./coil.ts'), () => import('./coil.ts'), (m) => m.coilCommand),
   },
   plan: {
-    prestart: prestartAnalysisWorker,
     summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
     load: lazy(() => require('./plan.ts') as typeof import('./plan.ts'), () => import('./plan.ts'), (m) => m.planCommand),
   },
@@ -51,12 +50,10 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./demo.ts') as typeof import('./demo.ts'), () => import('./demo.ts'), (m) => m.demoCommand),
   },
   render: {
-    prestart: prestartAnalysisWorker,
     summary: 'write the coil-ready modulation WAV (gain, pre-emphasis, limiter) and re-check every limit on it',
     load: lazy(() => require('./render.ts') as typeof import('./render.ts'), () => import('./render.ts'), (m) => m.renderCommand),
   },
   preview: {
-    prestart: prestartAnalysisWorker,
     summary: 'hear and see beforehand what the coil makes of a clip: arc-sound WAV and modulation preview',
     load: lazy(() => require('./preview.ts') as typeof import('./preview.ts'), () => import('./preview.ts'), (m) => m.previewCommand),
   },
