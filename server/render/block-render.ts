@@ -15,14 +15,16 @@
  * True peak: the limiter's true-peak passes (shared/dsp/limiter.ts) need the whole output's true
  * peak before they know whether to run again at a lower sample ceiling. Each pass therefore streams
  * the source through the chain again and measures the output's true peak as it goes
- * (TruePeakMeter); the encoder writes every pass and starts over when another is needed, so the last
- * pass is the file. Most renders take one pass.
+ * (TruePeakMeter), writing nothing; once the sample ceiling (and any final scaling) is known, one
+ * more pass writes the file. Music usually takes two measuring passes.
  */
 import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S, LimiterStream } from '../../shared/dsp/limiter.ts';
 import { TRUE_PEAK_PHASES, TruePeakMeter } from '../../shared/dsp/true-peak.ts';
 import { createRng } from '../../shared/demo/prng.ts';
 import { dbToAmp } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
+
+const LITTLE_ENDIAN = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
 
 /** Samples per block (256 KiB of float32): long enough that per-block costs vanish. */
 export const RENDER_BLOCK = 65536;
@@ -181,6 +183,7 @@ export class WavBlockEncoder {
     const out = this.bytes;
     const dec = this.decoded;
     const dv = new DataView(out.buffer);
+    const i16 = this.format === 's16' && LITTLE_ENDIAN ? new Int16Array(out.buffer, 0, n) : null;
     if (this.format === 'f32') {
       for (let i = 0; i < n; i++) {
         dv.setFloat32(4 * i, x[i], true);
@@ -198,7 +201,8 @@ export class WavBlockEncoder {
         let q = Math.round(x[i] * full + d);
         q = q < lo ? lo : q > hi ? hi : q;
         dec[i] = q * inv;
-        if (dither) dv.setInt16(2 * i, q, true);
+        if (i16 !== null) i16[i] = q;
+        else if (dither) dv.setInt16(2 * i, q, true);
         else {
           out[3 * i] = q & 0xff;
           out[3 * i + 1] = (q >> 8) & 0xff;
@@ -308,8 +312,8 @@ export function renderBlocks(
   const c = lim.workingCeiling;
   const meter = new TruePeakMeter();
 
-  /** One pass at sample ceiling `ceiling`, scaled by `scale`; returns the limiter's counts and the output's levels. */
-  const pass = (ceiling: number, scale: number, first: boolean) => {
+  /** One pass at sample ceiling `ceiling`, scaled by `scale`, to the sink when `write`; returns the limiter's counts and the output's levels. */
+  const pass = (ceiling: number, scale: number, first: boolean, write: boolean) => {
     graph.reset();
     meter.reset();
     const stream = new LimiterStream(ceiling, L, a);
@@ -322,7 +326,7 @@ export function renderBlocks(
         if (v > samplePeak) samplePeak = v;
       }
       meter.add(blk);
-      sink.write(blk);
+      if (write) sink.write(blk);
     };
     for (let at = 0; at < n; at += B) {
       const blk = g.subarray(0, Math.min(B, n - at));
@@ -337,22 +341,25 @@ export function renderBlocks(
     return { stream, samplePeak, tp: meter.value() };
   };
 
+  // Without the true peak, one pass is the file. With it, the passes only measure until the sample
+  // ceiling (and any final scaling) is known, then one more writes: encoding and the closed loop's
+  // reductions cost more than a pass of the limiter, and most renders need a second pass.
   let sampleCeiling = c;
   let passes = 1;
   let finalScale = 1;
-  let r = pass(sampleCeiling, 1, true);
+  let r = pass(sampleCeiling, 1, true, !lim.truePeak);
   if (lim.truePeak) {
+    let lastScale = 1;
     while (r.tp > c && passes < MAX_TRUE_PEAK_PASSES) {
       sampleCeiling *= (c / r.tp) * (1 - 1e-6);
-      sink.restart();
-      r = pass(sampleCeiling, 1, false);
+      r = pass(sampleCeiling, 1, false, false);
       passes++;
     }
     if (r.tp > c) {
       finalScale = (c / r.tp) * (1 - 1e-6);
-      sink.restart();
-      r = pass(sampleCeiling, finalScale, false);
+      lastScale = finalScale;
     }
+    r = pass(sampleCeiling, lastScale, false, true);
   }
   const minGain = r.stream.minGain * finalScale;
   return {

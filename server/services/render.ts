@@ -10,12 +10,12 @@ import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { limitLabel } from '../../shared/plan/limit-labels.ts';
 import { type LimitingNote, limitingNote } from '../../shared/plan/quality.ts';
 import { preEmphasisAdvice } from '../../shared/plan/report.ts';
-import { type ArcSound, type LevelTriple, arcSound } from '../../shared/preview/arc-sound.ts';
+import { type ArcSound, type LevelTriple, arcSoundBlocks } from '../../shared/preview/arc-sound.ts';
 import { type ModulationGrid, modulationGrid } from '../../shared/preview/grid.ts';
 import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
 import { ampToDb, finiteOrNull } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
-import { GraphStream, RENDER_BLOCK } from '../render/block-render.ts';
+import { GraphStream, RENDER_BLOCK, WavBlockEncoder } from '../render/block-render.ts';
 import { type ClosedLoopReport, PlanReducer, closedLoopCheck } from '../render/closed-loop.ts';
 import { type PreEmphasis, type RenderedModulation, type RenderedModulationFigures, quantisationMargin, renderModulationWav } from '../render/render-clip.ts';
 import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
@@ -290,17 +290,29 @@ export interface PreviewOptions {
 export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8Array; summary: PreviewSummary; modulation: ModulationPreview } {
   const choice = chooseGain(job.plan, job, o.gainDb);
   const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: o.columns ?? DEFAULT_MAX_COLUMNS, resonanceHz: job.coil.resonanceHz });
-  const arc = arcSound(job.source, job.clip.sampleRate, job.driver, job.coil, choice.gainDb, {
-    pulseEvents: job.plan.pulseEvents,
-    peakMargin: quantisationMargin(o.format),
+  // Block by block from the source into the file's bytes (the preview's samples are never whole).
+  const bytes = new Uint8Array(wavBytes(job.source.length, o.format));
+  let at = 0;
+  const enc = new WavBlockEncoder(job.clip.sampleRate, job.source.length, o.format, 1, (b) => {
+    bytes.set(b, at);
+    at += b.length;
   });
-  const bytes = encodeWav({ sampleRate: arc.sampleRate, channels: [arc.samples] }, { format: o.format, seed: 1 });
+  const arc = arcSoundBlocks(
+    job.source,
+    job.clip.sampleRate,
+    job.driver,
+    job.coil,
+    choice.gainDb,
+    { pulseEvents: job.plan.pulseEvents, peakMargin: quantisationMargin(o.format) },
+    (b) => enc.write(b),
+  );
+  enc.finish();
   const summary: PreviewSummary = {
     clip: o.names.clip,
     out: o.names.out,
     format: o.format,
     sampleRate: arc.sampleRate,
-    durationS: arc.samples.length / arc.sampleRate,
+    durationS: arc.sampleCount / arc.sampleRate,
     channel: job.channel,
     scheme: job.driver.scheme,
     gainDb: choice.gainDb,

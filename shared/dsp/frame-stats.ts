@@ -339,13 +339,20 @@ export class FrameStatsStream {
     const st = this.stats;
     let { k, end, at, s, s2, lo, hi } = this;
     if (at + block.length > st.sampleCount) throw new RangeError(`FrameStatsStream.add: more than the ${st.sampleCount} samples announced`);
-    for (let i = 0; i < block.length; i++, at++) {
-      const x = block[i];
-      s += x;
-      s2 += x * x;
-      if (x < lo) lo = x;
-      if (x > hi) hi = x;
-      if (at + 1 === end) {
+    let i = 0;
+    while (i < block.length) {
+      // the samples of frame k in this block (it ends at sample `end`), then its figures once complete
+      const stop = Math.min(block.length, i + (end - at));
+      const from = i;
+      for (; i < stop; i++) {
+        const x = block[i];
+        s += x;
+        s2 += x * x;
+        if (x < lo) lo = x;
+        if (x > hi) hi = x;
+      }
+      at += stop - from;
+      if (at === end) {
         const start = k === 0 ? 0 : frameStart(k, this.spf);
         const inv = 1 / (end - start);
         st.mean[k] = s * inv;

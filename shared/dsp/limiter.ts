@@ -115,8 +115,9 @@ export class LimiterStream {
   private slot = 0;
   private sum: number;
   private hPrev = 1;
-  /** The last L + 1 inputs, by index modulo L + 1 (the sample that leaves is L behind the newest). */
+  /** The last L + 1 inputs, a ring (the sample that leaves is L behind the newest), written at `dIn`. */
   private readonly delay: Float32Array;
+  private dIn = 0;
   /** Index of the next input sample (j); the output index is j − L. */
   private j = 0;
   /** Lowest gain applied so far, linear. */
@@ -154,14 +155,17 @@ export class LimiterStream {
   private steps(x: Float32Array | null, count: number, out: Float32Array): number {
     const { c, cf, L, a, W, cap, dqIdx, dqVal, ring, delay } = this;
     const D = L + 1;
-    let { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped } = this;
+    let { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped, dIn } = this;
     let o = 0;
     for (let i = 0; i < count; i++, j++) {
       // Push the required gain of sample j (1 beyond the clip's end).
       let v = 1;
+      // the ring's slot for sample j; the sample leaving (k = j − L) sits in the next slot
+      const d = dIn;
+      dIn = dIn + 1 === D ? 0 : dIn + 1;
       if (x !== null) {
         const xj = x[i];
-        delay[j % D] = xj;
+        delay[d] = xj;
         const ax = Math.abs(xj);
         if (ax > c) v = c / ax;
       }
@@ -195,7 +199,7 @@ export class LimiterStream {
         if (g < ONE_DB_DOWN) deep++;
         if (g < minGain) minGain = g;
       }
-      let y = Math.fround(delay[k % D] * g);
+      let y = Math.fround(delay[dIn] * g);
       if (y > cf) {
         y = cf;
         clamped++;
@@ -205,7 +209,7 @@ export class LimiterStream {
       }
       out[o++] = y;
     }
-    Object.assign(this, { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped });
+    Object.assign(this, { head, tail, slot, sum, hPrev, j, minGain, limited, deep, clamped, dIn });
     return o;
   }
 }

@@ -194,3 +194,71 @@ function densityOf(acc: Float64Array, segments: number, sampleRate: number, sumW
   }
   return { frequencyHz, psd, binHz, segments, size };
 }
+
+/**
+ * {@link welchPsd} (default options) block by block, for a signal that arrives in pieces and is not
+ * kept: the segments (size samples, hop size/2, from sample 0) are taken as soon as they are
+ * complete, a stretch of whole segments at a time through welchPsd, and the stretches' averages
+ * combined in proportion to their segment counts. The same segments and periodograms as welchPsd
+ * over the whole signal, summed in another grouping: equal within float64 rounding (~1e-15
+ * relative). Memory: the samples since the last stretch began, up to a few hundred thousand.
+ * Needs at least `size` samples in all (a shorter signal is welchPsd's special case: use it).
+ *
+ * @example const w = new WelchStream(44100); w.add(a); w.add(b); w.result() // ≈ welchPsd(a ++ b, 44100)
+ */
+export class WelchStream {
+  private readonly hop: number;
+  /** Samples not yet in a stretch (they start at a segment boundary). */
+  private buf: Float32Array;
+  private filled = 0;
+  private sum: Float64Array | null = null;
+  private segments = 0;
+  private last: WelchSpectrum | null = null;
+
+  constructor(
+    private readonly sampleRate: number,
+    private readonly size = 4096,
+    /** Segments per stretch sent to welchPsd. */
+    private readonly stretch = 64,
+  ) {
+    if (!isPowerOfTwo(size) || size < 4) throw new RangeError(`WelchStream: size must be a power of two ≥ 4, got ${size}`);
+    this.hop = size / 2;
+    this.buf = new Float32Array(size + stretch * this.hop);
+  }
+
+  add(x: Float32Array): void {
+    let i = 0;
+    while (i < x.length) {
+      const take = Math.min(x.length - i, this.buf.length - this.filled);
+      this.buf.set(x.subarray(i, i + take), this.filled);
+      this.filled += take;
+      i += take;
+      if (this.filled === this.buf.length) this.flush();
+    }
+  }
+
+  /** Runs welchPsd over the whole segments in the buffer and keeps the last size − hop samples. */
+  private flush(): void {
+    const { size, hop } = this;
+    if (this.filled < size) return;
+    const count = Math.floor((this.filled - size) / hop) + 1;
+    const span = (count - 1) * hop + size;
+    const s = welchPsd(this.buf.subarray(0, span), this.sampleRate, { size });
+    this.sum ??= new Float64Array(s.psd.length);
+    for (let k = 0; k < s.psd.length; k++) this.sum[k] += s.psd[k] * s.segments;
+    this.segments += s.segments;
+    this.last = s;
+    const next = count * hop; // where the next segment starts
+    this.buf.copyWithin(0, next, this.filled);
+    this.filled -= next;
+  }
+
+  /** The averaged spectrum; RangeError when fewer than `size` samples arrived. */
+  result(): WelchSpectrum {
+    this.flush();
+    if (this.last === null || this.sum === null) throw new RangeError(`WelchStream.result: fewer than ${this.size} samples`);
+    const psd = new Float64Array(this.sum.length);
+    for (let k = 0; k < psd.length; k++) psd[k] = this.sum[k] / this.segments;
+    return { ...this.last, psd, segments: this.segments };
+  }
+}

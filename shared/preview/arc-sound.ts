@@ -30,7 +30,7 @@
  * (BS.1770-4 Annex 2) and RMS stay at or below the ORIGINAL modulation source's: never louder than
  * the music it came from.
  */
-import { TRUE_PEAK_PHASES, channelTruePeakLinear, samplePeakLinear } from '../dsp/true-peak.ts';
+import { TRUE_PEAK_PHASES, TruePeakMeter, channelTruePeakLinear, samplePeakLinear } from '../dsp/true-peak.ts';
 import type { CoilAtResonance } from '../physics/driver/types.ts';
 import { type PulseEvents, pulseLimitsFor, pulsesAtGain, zeroCrossingEvents } from '../plan/pulse-train.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
@@ -120,13 +120,164 @@ const ANNEX2_ABS_TAP_SUM = Math.max(...TRUE_PEAK_PHASES.map((h) => h.reduce((s, 
 /** Below this (fraction of full power) the variation is taken as silence, not amplified. */
 const SILENCE_FLOOR = 1e-9;
 
+/** Samples per block of {@link arcSoundBlocks}. */
+const ARC_BLOCK = 65536;
+
 /**
- * The arc-sound preview of `source` (the modulation source, linear full scale) on `driver` and
- * `coil` at `gainDb` (module comment). `pulseEvents` (pulse scheme) default to the zero crossings of
- * the source. `peakMargin` (linear, default 0) is kept below the source's sample peak (and
- * ANNEX2 Σ|h| ≈ 2.02 times it below its true peak) for a later quantisation that moves samples by
- * up to that much (16-bit dither: 1.5 LSB). RangeError for an empty source, a NaN gain, or bad
- * coil figures.
+ * The arc-sound preview (module comment) of `source` (the modulation source, linear full scale) on
+ * `driver` and `coil` at `gainDb`, made block by block: one pass for the mean of the modelled power
+ * and the source's levels, one for the preview's levels before scaling, one that hands the scaled
+ * blocks to `sink` in order (the array is reused: copy what you keep). The one-pole's state and the
+ * true-peak meter's history carry across blocks, so the samples equal those of one pass over the
+ * whole signal; memory is a few blocks besides the source. `pulseEvents` (pulse scheme) default to
+ * the zero crossings of the source. `peakMargin` (linear, default 0) is kept below the source's
+ * sample peak (and ANNEX2 Σ|h| ≈ 2.02 times it below its true peak) for a later quantisation that
+ * moves samples by up to that much (16-bit dither: 1.5 LSB). RangeError for an empty source, a NaN
+ * gain, or bad coil figures.
+ *
+ * @example arcSoundBlocks(source, 44100, DEMO_DRIVER_LINEAR, coil, -3, {}, (b) => encoder.write(b)).limitedBy
+ */
+export function arcSoundBlocks(
+  source: Float32Array,
+  sampleRate: number,
+  driver: DriverProfile,
+  coil: CoilAtResonance,
+  gainDb: number,
+  opts: { pulseEvents?: PulseEvents; peakMargin?: number; blockSize?: number },
+  sink: (block: Float32Array) => void,
+): Omit<ArcSound, 'samples'> & { sampleCount: number } {
+  const n = source.length;
+  if (n === 0) throw new RangeError('arcSound: source has no samples');
+  if (Number.isNaN(gainDb) || gainDb === Infinity) throw new RangeError(`arcSound: gainDb must be finite or −Infinity, got ${gainDb}`);
+  if (!(coil.resonanceHz > 0 && coil.qualityFactor > 0)) {
+    throw new RangeError(`arcSound: coil needs resonanceHz > 0 and qualityFactor > 0, got ${coil.resonanceHz}, ${coil.qualityFactor}`);
+  }
+  const g = dbToAmp(gainDb);
+  const B = Math.max(1, Math.floor(opts.blockSize ?? ARC_BLOCK));
+  const work = new Float64Array(Math.min(B, n));
+  const raw = new Float32Array(work.length);
+  let cornerHz: number | null = null;
+  let pulseCount: number | null = null;
+  const rail = driver.scheme !== 'pulse';
+  let lp: OnePoleLowpass | null = null;
+  let train: ReturnType<typeof pulsesAtGain> | null = null;
+  if (rail) {
+    cornerHz = coil.resonanceHz / (2 * coil.qualityFactor);
+    lp = onePoleLowpass(Math.min(cornerHz, sampleRate / 2), sampleRate);
+  } else {
+    if (!driver.pulse) throw new RangeError('arcSound: the pulse scheme needs driver.pulse limits');
+    const events = opts.pulseEvents ?? zeroCrossingEvents(source, sampleRate);
+    // Pulses shorter than the minimum on-time are dropped, as the planner drops them.
+    train = pulsesAtGain(events, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
+    pulseCount = train.count;
+  }
+
+  // The model's output before the mean is removed, for samples b0…b0+len−1, into work[0…len−1].
+  let firstPulse = 0;
+  const model = (b0: number, len: number) => {
+    const b1 = b0 + len;
+    if (rail) {
+      for (let i = 0; i < len; i++) {
+        let u = 1 + g * source[b0 + i];
+        u = u < 0 ? 0 : u > 2 ? 1 : u / 2;
+        work[i] = u * u;
+      }
+      return;
+    }
+    work.fill(0, 0, len);
+    const t = train!;
+    while (firstPulse < t.count && (t.startS[firstPulse] + t.onS[firstPulse]) * sampleRate <= b0) firstPulse++;
+    for (let i = firstPulse; i < t.count; i++) {
+      const a = t.startS[i] * sampleRate;
+      if (a >= b1) break;
+      const b = a + t.onS[i] * sampleRate;
+      // Area of [a, b) falling in each sample period [k, k + 1).
+      for (let k = Math.max(b0, Math.floor(a)); k < n && k < b1 && k < b; k++) {
+        const lo = Math.max(a, k);
+        const hi = Math.min(b, k + 1);
+        if (hi > lo) work[k - b0] += hi - lo;
+      }
+    }
+  };
+
+  // Pass 1: the mean of the modelled power (or pulse coverage), summed in sample order.
+  let sum = 0;
+  for (let b0 = 0; b0 < n; b0 += B) {
+    const len = Math.min(B, n - b0);
+    model(b0, len);
+    for (let i = 0; i < len; i++) sum += work[i];
+  }
+  const mean = sum / n;
+
+  /** Runs the model with the mean removed (and the one-pole for the rail schemes) over the clip, block by block into raw. */
+  const each = (use: (raw: Float32Array) => void) => {
+    firstPulse = 0;
+    let y = 0;
+    for (let b0 = 0; b0 < n; b0 += B) {
+      const len = Math.min(B, n - b0);
+      model(b0, len);
+      const r = raw.subarray(0, len);
+      if (lp) {
+        const { alpha, b0: c0 } = lp;
+        for (let i = 0; i < len; i++) {
+          y = c0 * (work[i] - mean) + alpha * y;
+          r[i] = y;
+        }
+      } else {
+        for (let i = 0; i < len; i++) r[i] = work[i] - mean;
+      }
+      use(r);
+    }
+  };
+  const meter = new TruePeakMeter();
+  const levelsOf = (make: (take: (x: Float32Array) => void) => void): LevelTriple => {
+    meter.reset();
+    let peak = 0;
+    let s2 = 0;
+    make((x) => {
+      for (let i = 0; i < x.length; i++) {
+        s2 += x[i] * x[i];
+        const v = Math.abs(x[i]);
+        if (v > peak) peak = v;
+      }
+      meter.add(x);
+    });
+    return { samplePeak: peak, truePeak: meter.value(), rms: Math.sqrt(s2 / n) };
+  };
+
+  const src = levelTriple(source);
+  // Pass 2: the preview's levels before scaling.
+  const pre = levelsOf((take) => each(take));
+  const base = { sampleRate, sampleCount: n, scheme: driver.scheme, gainDb, cornerHz, source: src, pulseCount };
+  if (!(pre.samplePeak > SILENCE_FLOOR) || !(src.rms > 0)) {
+    const zeros = new Float32Array(Math.min(B, n));
+    for (let b0 = 0; b0 < n; b0 += B) sink(zeros.subarray(0, Math.min(B, n - b0)));
+    return { ...base, scale: 0, limitedBy: 'silence', output: { samplePeak: 0, truePeak: 0, rms: 0 } };
+  }
+  const m = opts.peakMargin ?? 0;
+  const candidates: [ArcSound['limitedBy'], number][] = [
+    ['sample-peak', Math.max(0, src.samplePeak - m) / pre.samplePeak],
+    ['true-peak', Math.max(0, src.truePeak - ANNEX2_ABS_TAP_SUM * m) / pre.truePeak],
+    ['rms', src.rms / pre.rms],
+  ];
+  let [limitedBy, scale] = candidates[0];
+  for (const [k, sc] of candidates) if (sc < scale) [limitedBy, scale] = [k, sc];
+  // A hair under the bound so float32 rounding of the products cannot lift a level above the source's.
+  scale *= 1 - 1e-6;
+  // Pass 3: the scaled preview, to the sink, with its levels.
+  const output = levelsOf((take) =>
+    each((r) => {
+      for (let i = 0; i < r.length; i++) r[i] = r[i] * scale;
+      take(r);
+      sink(r);
+    }),
+  );
+  return { ...base, scale, limitedBy, output };
+}
+
+/**
+ * The arc-sound preview of `source` in one array: {@link arcSoundBlocks} with its blocks collected
+ * (for tests and short clips; the preview service streams the blocks to the file instead).
  *
  * @example arcSound(source, 44100, DEMO_DRIVER_LINEAR, { resonanceHz: 328e3, qualityFactor: 377 }, -3).cornerHz // ≈ 435 Hz
  */
@@ -136,70 +287,13 @@ export function arcSound(
   driver: DriverProfile,
   coil: CoilAtResonance,
   gainDb: number,
-  opts: { pulseEvents?: PulseEvents; peakMargin?: number } = {},
+  opts: { pulseEvents?: PulseEvents; peakMargin?: number; blockSize?: number } = {},
 ): ArcSound {
-  const n = source.length;
-  if (n === 0) throw new RangeError('arcSound: source has no samples');
-  if (Number.isNaN(gainDb) || gainDb === Infinity) throw new RangeError(`arcSound: gainDb must be finite or −Infinity, got ${gainDb}`);
-  if (!(coil.resonanceHz > 0 && coil.qualityFactor > 0)) {
-    throw new RangeError(`arcSound: coil needs resonanceHz > 0 and qualityFactor > 0, got ${coil.resonanceHz}, ${coil.qualityFactor}`);
-  }
-  const g = dbToAmp(gainDb);
-  const work = new Float64Array(n);
-  let cornerHz: number | null = null;
-  let pulseCount: number | null = null;
-  if (driver.scheme !== 'pulse') {
-    let sum = 0;
-    for (let i = 0; i < n; i++) {
-      let u = 1 + g * source[i];
-      u = u < 0 ? 0 : u > 2 ? 1 : u / 2;
-      const p = u * u;
-      work[i] = p;
-      sum += p;
-    }
-    const mean = sum / n;
-    for (let i = 0; i < n; i++) work[i] -= mean;
-    cornerHz = coil.resonanceHz / (2 * coil.qualityFactor);
-    filterOnePole(onePoleLowpass(Math.min(cornerHz, sampleRate / 2), sampleRate), work, work);
-  } else {
-    if (!driver.pulse) throw new RangeError('arcSound: the pulse scheme needs driver.pulse limits');
-    const events = opts.pulseEvents ?? zeroCrossingEvents(source, sampleRate);
-    // Pulses shorter than the minimum on-time are dropped, as the planner drops them.
-    const train = pulsesAtGain(events, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
-    pulseCount = train.count;
-    for (let i = 0; i < train.count; i++) {
-      const a = train.startS[i] * sampleRate;
-      const b = a + train.onS[i] * sampleRate;
-      // Area of [a, b) falling in each sample period [k, k + 1).
-      for (let k = Math.max(0, Math.floor(a)); k < n && k < b; k++) {
-        const lo = Math.max(a, k);
-        const hi = Math.min(b, k + 1);
-        if (hi > lo) work[k] += hi - lo;
-      }
-    }
-    let sum = 0;
-    for (let i = 0; i < n; i++) sum += work[i];
-    const mean = sum / n;
-    for (let i = 0; i < n; i++) work[i] -= mean;
-  }
-
-  const raw = Float32Array.from(work);
-  const src = levelTriple(source);
-  const pre = levelTriple(raw);
-  const samples = new Float32Array(n);
-  if (!(pre.samplePeak > SILENCE_FLOOR) || !(src.rms > 0)) {
-    return { sampleRate, samples, scheme: driver.scheme, gainDb, cornerHz, scale: 0, limitedBy: 'silence', source: src, output: levelTriple(samples), pulseCount };
-  }
-  const m = opts.peakMargin ?? 0;
-  const candidates: [ArcSound['limitedBy'], number][] = [
-    ['sample-peak', Math.max(0, src.samplePeak - m) / pre.samplePeak],
-    ['true-peak', Math.max(0, src.truePeak - ANNEX2_ABS_TAP_SUM * m) / pre.truePeak],
-    ['rms', src.rms / pre.rms],
-  ];
-  let [limitedBy, scale] = candidates[0];
-  for (const [k, s] of candidates) if (s < scale) [limitedBy, scale] = [k, s];
-  // A hair under the bound so float32 rounding of the products cannot lift a level above the source's.
-  scale *= 1 - 1e-6;
-  for (let i = 0; i < n; i++) samples[i] = raw[i] * scale;
-  return { sampleRate, samples, scheme: driver.scheme, gainDb, cornerHz, scale, limitedBy, source: src, output: levelTriple(samples), pulseCount };
+  const samples = new Float32Array(source.length);
+  let at = 0;
+  const { sampleCount: _n, ...r } = arcSoundBlocks(source, sampleRate, driver, coil, gainDb, opts, (b) => {
+    samples.set(b, at);
+    at += b.length;
+  });
+  return { ...r, samples };
 }

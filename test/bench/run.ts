@@ -22,6 +22,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { encodeWav, writeWavAtomic } from '../../server/audio/wav.ts';
 import { synthLongDemo } from '../../shared/demo/clips.ts';
+import { runEngineBench } from './engine-bench.ts';
 import { runPlanBench } from './plan-bench.ts';
 import { runServerBench } from './server-bench.ts';
 
@@ -43,7 +44,7 @@ try {
   const bin = join(here, '..', '..', 'bin', 'coilcue.cjs');
   const rssFile = join(dir, 'rss');
   /** The executable end to end: wall seconds from spawn to exit, peak RSS in MiB. */
-  const command = (): { s: number; rssMiB: number } => {
+  const command = (): { s: number; rssMiB: number; cpuS: number } => {
     const t0 = performance.now();
     const r = spawnSync(process.execPath, ['--require', join(here, 'rss-on-exit.cjs'), bin, 'analyze', wav, '--json'], {
       env: { ...process.env, COILCUE_BENCH_RSS_FILE: rssFile },
@@ -52,17 +53,24 @@ try {
     });
     const s = (performance.now() - t0) / 1000;
     if (r.status !== 0) throw new Error(`coilcue analyze exited ${r.status}: ${r.stderr}`);
-    return { s, rssMiB: Number(readFileSync(rssFile, 'utf8')) / 1024 };
+    const m = JSON.parse(readFileSync(rssFile, 'utf8')) as { rssKiB: number; cpuS: number };
+    return { s, rssMiB: m.rssKiB / 1024, cpuS: m.cpuS };
   };
   // ffmpeg's pass is timed between our runs, so both see the same state of a shared, noisy machine.
   const hasFfmpeg = spawnSync('sh', ['-c', 'command -v ffmpeg'], { encoding: 'utf8' }).status === 0;
+  // ffmpeg's CPU time (user + system) from the shell's `times`, whose second line is its children's.
+  const ffCpu: number[] = [];
   const ffmpegS = (): number => {
     const t0 = performance.now();
-    spawnSync('ffmpeg', ['-hide_banner', '-nostats', '-i', wav, '-af', 'ebur128=peak=true', '-f', 'null', '-'], { encoding: 'utf8' });
-    return (performance.now() - t0) / 1000;
+    const r = spawnSync('bash', ['-c', 'ffmpeg -hide_banner -nostats -i "$1" -af ebur128=peak=true -f null - 2>/dev/null; times', 'bench', wav], { encoding: 'utf8' });
+    const s = (performance.now() - t0) / 1000;
+    const line = r.stdout.trim().split('\n').pop() ?? '';
+    const secs = [...line.matchAll(/(\d+)m([\d.]+)s/g)].map((m) => 60 * Number(m[1]) + Number(m[2]));
+    ffCpu.push(secs.length === 2 ? secs[0] + secs[1] : Number.NaN);
+    return s;
   };
   command(); // a first run compiles the TypeScript into tsx's cache, as any earlier use of the tool has
-  const runs: { s: number; rssMiB: number }[] = [];
+  const runs: { s: number; rssMiB: number; cpuS: number }[] = [];
   const ffTimes: number[] = [];
   for (let i = 0; i < 7; i++) {
     runs.push(command());
@@ -81,6 +89,12 @@ try {
     const paired = median(runs.map((r, i) => r.s / ffTimes[i]));
     console.log(`ffmpeg ebur128=peak=true, median of ${ffTimes.length}: ${ff.toFixed(3)} s (runs ${ffTimes.map((t) => t.toFixed(2)).join(', ')})`);
     console.log(`  ratio ours/ffmpeg: ${ratio.toFixed(2)} of the medians, ${paired.toFixed(2)} median of the paired runs (target ≤ 0.8): ${Math.max(ratio, paired) <= 0.8 ? 'met' : 'NOT MET'}`);
+    const cpu = median(runs.map((r) => r.cpuS));
+    const ffc = median(ffCpu);
+    const cpuPaired = median(runs.map((r, i) => r.cpuS / ffCpu[i]));
+    console.log(
+      `  CPU time (user + system): ours ${cpu.toFixed(2)} s, ffmpeg ${ffc.toFixed(2)} s (medians); ratio ${(cpu / ffc).toFixed(2)} of the medians, ${cpuPaired.toFixed(2)} median of the paired runs (target ≤ 1.2): ${Math.max(cpu / ffc, cpuPaired) <= 1.2 ? 'met' : 'NOT MET'}`,
+    );
   } else {
     console.log('ffmpeg not on PATH: ratio not measured (apt-get install -y ffmpeg to compare)');
   }
@@ -100,6 +114,7 @@ try {
   );
 
   await runPlanBench(wav);
+  await runEngineBench(dir, wav);
   await runServerBench(wav, totalS);
 } finally {
   rmSync(dir, { recursive: true, force: true });

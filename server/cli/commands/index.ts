@@ -57,7 +57,6 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./coil.ts') as typeof import('./coil.ts'), () => import('./coil.ts'), (m) => m.coilCommand),
   },
   plan: {
-    ...WORKER,
     options: PLAN_OPTIONS,
     summary: 'advise the gain for a clip or a set: junction temperatures, duty budget, binding limit',
     load: lazy(() => require('./plan.ts') as typeof import('./plan.ts'), () => import('./plan.ts'), (m) => m.planCommand),
@@ -68,13 +67,11 @@ export const commands: Record<string, CommandEntry> = {
     load: lazy(() => require('./demo.ts') as typeof import('./demo.ts'), () => import('./demo.ts'), (m) => m.demoCommand),
   },
   render: {
-    ...WORKER,
     options: RENDER_OPTIONS,
     summary: 'write the coil-ready modulation WAV (gain, pre-emphasis, limiter) and re-check every limit on it',
     load: lazy(() => require('./render.ts') as typeof import('./render.ts'), () => import('./render.ts'), (m) => m.renderCommand),
   },
   preview: {
-    ...WORKER,
     options: PREVIEW_OPTIONS,
     summary: 'hear and see beforehand what the coil makes of a clip: arc-sound WAV and modulation preview',
     load: lazy(() => require('./preview.ts') as typeof import('./preview.ts'), () => import('./preview.ts'), (m) => m.previewCommand),
