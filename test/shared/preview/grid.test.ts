@@ -47,13 +47,14 @@ describe('modulationGrid', () => {
 describe('modulationGrid, pulse scheme', () => {
   it('carries per column the pulse count, the longest on-time and the power, as computed by hand', () => {
     // Three pulse instants at 0.5, 1.2 and 3.1 ms with levels 0.5, 1 and 0.25; at 0 dB the on-time is
-    // 100 µs × level: 50, 100 and 25 µs (no limit binds: no off-time, duty up to 1). 100 V × 10 A = 1 kW full power.
-    const driver = { ...DEMO_DRIVER_PULSE, supplyVoltageV: 100, fullRailCurrentA: 10, pulse: { maxOnTimeS: 100e-6, minOffTimeS: 0, maxDuty: 1 } };
+    // 100 µs × level: 50, 100 and 25 µs (no limit binds: no off-time, duty up to 1, and a 1 µs minimum
+    // on-time). 100 V × 10 A = 1 kW full power.
+    const driver = { ...DEMO_DRIVER_PULSE, supplyVoltageV: 100, fullRailCurrentA: 10, pulse: { maxOnTimeS: 100e-6, minOffTimeS: 0, maxDuty: 1, minOnTimeS: 1e-6 } };
     const pulsed: PlanClip = {
       ...clip,
       pulseEvents: { mode: 'zero-crossing', timeS: Float64Array.of(0.0005, 0.0012, 0.0031), level: Float32Array.of(0.5, 1, 0.25), durationS: clip.durationS },
     };
-    const g = modulationGrid(modulationPreview(pulsed, driver, 0, { maxColumns: 2 }));
+    const g = modulationGrid(modulationPreview(pulsed, driver, 0, { maxColumns: 2, resonanceHz: 300e3 }));
     // column 0 (0…2 ms): 2 pulses, longest 100 µs, mean power (150 µs / 2 ms)·1000 W = 75 W;
     // column 1 (2…4 ms): 1 pulse of 25 µs, mean (25 µs / 2 ms)·1000 W = 12.5 W; highest: 1000 W while a pulse is on.
     expect(g.pulseCount).toEqual([2, 1]);
