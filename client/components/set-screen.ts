@@ -225,7 +225,7 @@ export class SetScreen extends LitElement {
               <td>${p ? formatDb(p.document.limiterCeilingDbfs, 'dBFS') : formatDb(-it.gainDb, 'dBFS')}</td>
               <td>${p ? preEmphasisWords(p.document) : '—'}</td>
               <td>${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C</td>
-              <td>${formatClock(it.gapAfterS)}${it.minGapAfterS != null && it.minGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minGapAfterS)} s)` : ''}</td>
+              <td>${it.gapAfterS} s${it.minGapAfterS != null && it.minGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minGapAfterS)} s)` : ''}</td>
             </tr>`;
           })}
         </tbody>

@@ -215,7 +215,7 @@ export class TimeCharts extends LitElement {
         series: 4,
         data: [m.timeS, m.railMaxV, m.railMinV, supply] as uPlot.AlignedData,
         opts: (w: number) => ({
-          ...this.base(w, 170, 'rail voltage', 'V', [
+          ...this.base(w, 190, 'rail voltage', 'V', [
             { label: 'highest rail', stroke: seriesColour(0), width: 1 },
             { label: 'lowest rail', stroke: seriesColour(1), width: 1, dash: DASHES[1] },
             { label: `supply ${m.supplyVoltageV} V`, stroke: cssVar('--fg'), width: 2, dash: DASHES[2] },
@@ -258,7 +258,7 @@ export class TimeCharts extends LitElement {
     return {
       series: series.length + 1,
       data: data as uPlot.AlignedData,
-      opts: (w: number) => this.base(w, 200, 'junction temperature', '°C', series),
+      opts: (w: number) => this.base(w, 250, 'junction temperature', '°C', series),
     };
   }
 }
