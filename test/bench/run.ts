@@ -23,6 +23,7 @@ import { fileURLToPath } from 'node:url';
 import { encodeWav, writeWavAtomic } from '../../server/audio/wav.ts';
 import { synthLongDemo } from '../../shared/demo/clips.ts';
 import { runPlanBench } from './plan-bench.ts';
+import { printWebBench } from './web-bench.ts';
 
 const DURATION_S = 300;
 const here = fileURLToPath(new URL('.', import.meta.url));
@@ -99,6 +100,7 @@ try {
   );
 
   await runPlanBench(wav);
+  printWebBench();
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }
