@@ -272,6 +272,7 @@ export class CoilcueApp extends LitElement {
         </div>
         <div id="screen-clip" class="screen" ?hidden=${this.screen !== 'clip'}>
           <clip-screen
+            .active=${this.screen === 'clip'}
             .clips=${clips}
             .clipId=${this.clipId}
             .job=${this.analysis.status === 1 ? this.analysisJob.job : null}
@@ -293,6 +294,7 @@ export class CoilcueApp extends LitElement {
         </div>
         <div id="screen-rig" class="screen" ?hidden=${this.screen !== 'rig'}>
           <rig-screen
+            .active=${this.screen === 'rig'}
             .coils=${coils}
             .drivers=${drivers}
             .coilId=${this.coilId}
