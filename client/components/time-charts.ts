@@ -177,7 +177,8 @@ export class TimeCharts extends LitElement {
       cursor: { sync: { key: SYNC_KEY }, drag: { x: true, y: false, setScale: true } },
       legend: { live: true },
       axes: [axis('time', 's'), axis(yQuantity, yUnit, { size: 60 })],
-      series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : v.toFixed(3)) }, ...series],
+      // No point markers: lines only, which keeps zoomed-in redraws cheap.
+      series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : v.toFixed(3)) }, ...series.map((x) => ({ ...x, points: { show: false } }))],
       hooks: {
         setScale: [
           (u, key) => {
