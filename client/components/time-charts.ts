@@ -151,7 +151,8 @@ export class TimeCharts extends LitElement {
       return;
     }
     if (old && old.series.length === spec.series && box.contains(old.root)) {
-      old.setData(spec.data, false);
+      // New data re-ranges the value axis (hotter curves stay in view); the time range is put back.
+      old.setData(spec.data, true);
       this.applyRange(old);
       return;
     }
