@@ -38,6 +38,13 @@ export class TimeCharts extends LitElement {
   private range: { fromS: number; toS: number } | null = null;
   private readonly settle = new DebounceController(this, 120);
   private resize: ResizeObserver | null = null;
+  private scheme: MediaQueryList | null = null;
+  /** Light or dark changed: the charts read their colours when made, so make them again. */
+  private readonly onScheme = (): void => {
+    for (const p of this.plots.values()) p.destroy();
+    this.plots.clear();
+    this.requestUpdate();
+  };
 
   constructor() {
     super();
@@ -66,11 +73,16 @@ export class TimeCharts extends LitElement {
       });
       this.resize.observe(this);
     }
+    if (typeof matchMedia !== 'undefined') {
+      this.scheme = matchMedia('(prefers-color-scheme: dark)');
+      this.scheme.addEventListener('change', this.onScheme);
+    }
   }
 
   override disconnectedCallback(): void {
     super.disconnectedCallback();
     this.resize?.disconnect();
+    this.scheme?.removeEventListener('change', this.onScheme);
     for (const p of this.plots.values()) p.destroy();
     this.plots.clear();
   }

@@ -257,8 +257,23 @@ describe.skipIf(!realServerExists() && !useFake)('the web page in Chromium', () 
         }
       }
     }
-    // The cautions dialog too.
+    // Dark, following the system setting: photographed and scanned again (contrast included).
     await page.setViewportSize(SIZES[0]);
+    await page.emulateMedia({ colorScheme: 'dark' });
+    for (const s of SCREENS) {
+      await go(s);
+      await page.waitForTimeout(300);
+      await page.screenshot({ path: join(ARTIFACTS, `${s}-1280x800-dark.png`), fullPage: true });
+      const bad = await page.evaluate(async () => {
+        const axe = (window as unknown as { axe: { run: (ctx: unknown, o: unknown) => Promise<{ violations: { id: string; impact: string; help: string; nodes: { target: string[] }[] }[] }> } }).axe;
+        const r = await axe.run(document, { resultTypes: ['violations'] });
+        return r.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical').map((v) => `${v.id} (${v.impact}): ${v.help} at ${v.nodes.slice(0, 3).map((n) => n.target.join(' ')).join(', ')}`);
+      });
+      expect(bad, `screen ${s}, dark`).toEqual([]);
+    }
+    await page.emulateMedia({ colorScheme: 'light' });
+    // The cautions dialog too.
+    await go('verdict');
     await page.click('.caution-button');
     await page.waitForSelector('dialog.cautions[open]');
     await page.screenshot({ path: join(ARTIFACTS, 'cautions-1280x800.png') });
