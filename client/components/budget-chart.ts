@@ -20,7 +20,7 @@ export class BudgetChart extends UplotElement {
   constructor() {
     super();
     this.curves = [];
-    this.chartHeight = 220;
+    this.chartHeight = 260;
   }
 
   override render() {
@@ -65,7 +65,7 @@ export class BudgetChart extends UplotElement {
       width,
       height: this.chartHeight,
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
-      axes: [axis('burst length', 's', { splits: logSplits, values: logTickValues }), axis('share of full operation', 'fraction', { size: 60, splits: logSplits, values: logTickValues })],
+      axes: [axis('burst length', 's', { splits: logSplits, values: logTickValues }), axis('share of full operation', '', { size: 60, splits: logSplits, values: logTickValues })],
       series,
       hooks: {
         draw: [

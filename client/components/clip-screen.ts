@@ -12,7 +12,8 @@ import './time-charts.ts';
  * spectrum with the coil's modulation corner, and its spectrogram.
  *
  * Properties: `clips`, `clipId`, `job` (the analysis job as last reported), `analysis`,
- *   `display`, `cornerHz`, `error` (words from the owner's failed analysis, or null).
+ *   `display`, `cornerHz`, `error` (words from the owner's failed analysis, or null), `active`
+ *   (shown now).
  * Events: `clip-select` { clipId } when the person picks a clip; `clip-uploaded` { clip } after
  *   an upload is stored.
  */
@@ -27,6 +28,7 @@ export class ClipScreen extends LitElement {
     error: { attribute: false },
     uploadFraction: { state: true },
     dragging: { state: true },
+    active: { type: Boolean },
   };
 
   declare clips: Clip[];
@@ -38,6 +40,9 @@ export class ClipScreen extends LitElement {
   declare error: string | null;
   declare uploadFraction: number | null;
   declare dragging: boolean;
+  /** Whether the screen is shown; the charts are drawn the first time it is. */
+  declare active: boolean;
+  private shown = false;
 
   private readonly upload = new Task(this, {
     autoRun: false,
@@ -64,6 +69,11 @@ export class ClipScreen extends LitElement {
     this.error = null;
     this.uploadFraction = null;
     this.dragging = false;
+    this.active = true;
+  }
+
+  protected override willUpdate(): void {
+    if (this.active) this.shown = true;
   }
 
   protected override createRenderRoot(): HTMLElement {
@@ -155,7 +165,7 @@ export class ClipScreen extends LitElement {
             </dl>
           </section>`
         : nothing}
-      ${this.display
+      ${this.display && this.shown
         ? html`<section class="panel" aria-label="Charts of the clip">
             <time-charts .display=${this.display} .durationS=${s?.durationS ?? clip?.durationS ?? 0} label="Envelope of the clip"></time-charts>
             <spectrum-chart .freqHz=${this.display.spectrum.freqHz} .powerDb=${this.display.spectrum.powerDb} .cornerHz=${this.cornerHz}></spectrum-chart>

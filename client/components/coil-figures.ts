@@ -29,6 +29,11 @@ export class CoilFigures extends LitElement {
     return this;
   }
 
+  protected override updated(): void {
+    // When the figures were first drawn, ms after navigation (the page's speed figure reads it).
+    if (this.report && !this.dataset.drawnAtMs) this.dataset.drawnAtMs = performance.now().toFixed(0);
+  }
+
   override render() {
     const r = this.report;
     if (!r) return html`<p class="muted">Figures appear once the coil profile is complete.</p>`;

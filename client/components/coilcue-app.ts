@@ -79,6 +79,8 @@ export class CoilcueApp extends LitElement {
   declare cautionsRead: boolean;
   declare reload: number;
 
+  /** Ids just made here (an upload, a save) that the lists may not hold until they reload. */
+  private readonly fresh = new Set<string>();
   private readonly analysisJob = new JobController(this);
   private readonly planJob = new JobController(this);
   private readonly onHash = (): void => this.fromHash();
@@ -106,12 +108,17 @@ export class CoilcueApp extends LitElement {
     task: async ([clipId]: [string | null], { signal }) => {
       if (!clipId) return null;
       const { analysis, job } = await startAnalysis(clipId, {}, signal);
+      if (analysis.summary && analysis.state === 'done') return analysis;
       const done = await this.analysisJob.watch(job);
-      const a = analysis.summary ? analysis : await getAnalysis(done.resultId ?? analysis.id, signal);
-      const display = await getDisplay(a.id, { columns: 1000 }, signal);
-      return { analysis: a, display };
+      return getAnalysis(done.resultId ?? analysis.id, signal);
     },
     args: () => [this.clipId] as [string | null],
+  });
+
+  /** The clip's chart data, fetched beside the plan (neither waits for the other). */
+  private readonly display = new Task(this, {
+    task: async ([analysisId]: [string | null], { signal }) => (analysisId ? getDisplay(analysisId, { columns: 1000 }, signal) : null),
+    args: () => [this.analysis.value?.id ?? null] as [string | null],
   });
 
   private readonly plan = new Task(this, {
@@ -131,7 +138,7 @@ export class CoilcueApp extends LitElement {
         this.clipId,
         coil ? `${coil.id}@${coil.updatedAt}` : '',
         driver ? `${driver.id}@${driver.updatedAt}` : '',
-        this.analysis.value?.analysis.id ?? null,
+        this.analysis.value?.id ?? null,
       ] as [string | null, string, string, string | null];
     },
   });
@@ -185,9 +192,11 @@ export class CoilcueApp extends LitElement {
     // Fill the choice from the lists once they arrive: the first of each, unless one is stored.
     const l = this.lists.value;
     if (!l) return;
-    if (!l.coils.some((c) => c.id === this.coilId)) this.coilId = l.coils[0]?.id ?? null;
-    if (!l.drivers.some((d) => d.id === this.driverId)) this.driverId = l.drivers[0]?.id ?? null;
-    if (this.clipId !== null && !l.clips.some((c) => c.id === this.clipId)) this.clipId = null;
+    for (const id of this.fresh) if ([...l.coils, ...l.drivers, ...l.clips].some((x) => x.id === id)) this.fresh.delete(id);
+    const known = (id: string | null, xs: { id: string }[]) => id !== null && (this.fresh.has(id) || xs.some((x) => x.id === id));
+    if (!known(this.coilId, l.coils)) this.coilId = l.coils[0]?.id ?? null;
+    if (!known(this.driverId, l.drivers)) this.driverId = l.drivers[0]?.id ?? null;
+    if (this.clipId !== null && !known(this.clipId, l.clips)) this.clipId = null;
     if (this.clipId === null) this.clipId = l.clips[0]?.id ?? null;
     try {
       localStorage.setItem(STORE, JSON.stringify({ clipId: this.clipId, coilId: this.coilId, driverId: this.driverId }));
@@ -217,7 +226,8 @@ export class CoilcueApp extends LitElement {
     const coil = coils.find((c) => c.id === this.coilId) ?? null;
     const driver = drivers.find((d) => d.id === this.driverId) ?? null;
     const plan = this.plan.value ?? null;
-    const a = this.analysis.value ?? null;
+    const analysis = this.analysis.value ?? null;
+    const display = this.display.value ?? null;
     const cautions = this.cautions.value ?? null;
     return html`
       <a class="skip" href="#main">Skip to the screen</a>
@@ -253,8 +263,8 @@ export class CoilcueApp extends LitElement {
         <div id="screen-verdict" class="screen" ?hidden=${this.screen !== 'verdict'}>
           <verdict-screen
             .plan=${plan}
-            .analysis=${a?.analysis ?? null}
-            .display=${a?.display ?? null}
+            .analysis=${analysis}
+            .display=${display}
             .busy=${this.planWords()}
             .clipName=${clip?.name ?? null}
             @gain-change=${(e: CustomEvent<{ gainDb: number | null }>) => (this.gainDb = e.detail.gainDb)}
@@ -262,11 +272,12 @@ export class CoilcueApp extends LitElement {
         </div>
         <div id="screen-clip" class="screen" ?hidden=${this.screen !== 'clip'}>
           <clip-screen
+            .active=${this.screen === 'clip'}
             .clips=${clips}
             .clipId=${this.clipId}
             .job=${this.analysis.status === 1 ? this.analysisJob.job : null}
-            .analysis=${a?.analysis ?? null}
-            .display=${a?.display ?? null}
+            .analysis=${analysis}
+            .display=${display}
             .cornerHz=${coil?.report.modulationCornerHz ?? null}
             .error=${this.analysis.status === 3 ? (this.analysis.error as Error).message : null}
             @clip-select=${(e: CustomEvent<{ clipId: string }>) => {
@@ -274,6 +285,7 @@ export class CoilcueApp extends LitElement {
               this.gainDb = null;
             }}
             @clip-uploaded=${(e: CustomEvent<{ clip: Clip }>) => {
+              this.fresh.add(e.detail.clip.id);
               this.clipId = e.detail.clip.id;
               this.gainDb = null;
               this.reload++;
@@ -282,6 +294,7 @@ export class CoilcueApp extends LitElement {
         </div>
         <div id="screen-rig" class="screen" ?hidden=${this.screen !== 'rig'}>
           <rig-screen
+            .active=${this.screen === 'rig'}
             .coils=${coils}
             .drivers=${drivers}
             .coilId=${this.coilId}
@@ -291,6 +304,7 @@ export class CoilcueApp extends LitElement {
               if (e.detail.driverId) this.driverId = e.detail.driverId;
             }}
             @rig-saved=${(e: CustomEvent<{ kind: 'coil' | 'driver'; item: Coil | Driver }>) => {
+              this.fresh.add(e.detail.item.id);
               if (e.detail.kind === 'coil') this.coilId = e.detail.item.id;
               else this.driverId = e.detail.item.id;
               this.reload++;

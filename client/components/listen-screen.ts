@@ -3,7 +3,7 @@ import { Task } from '@lit/task';
 import { clipAudioUrl, getRender, renderAudioUrl, startRender, type Clip, type Plan, type Render, type RenderSummary } from '../api.ts';
 import { AudioController } from '../controllers/audio-controller.ts';
 import { JobController } from '../controllers/job-controller.ts';
-import { formatClock, formatDb } from '../../shared/display/format.ts';
+import { formatClock, formatDb, formatSi } from '../../shared/display/format.ts';
 
 type Kind = 'render' | 'preview';
 const VERSIONS: { key: 'original' | Kind; words: string }[] = [
@@ -28,12 +28,15 @@ export class ListenScreen extends LitElement {
     gainDb: { attribute: false },
     cautionsRead: { type: Boolean },
     waiting: { state: true },
+    emphasis: { state: true },
   };
   declare plan: Plan | null;
   declare clip: Clip | null;
   declare gainDb: number | null;
   declare cautionsRead: boolean;
   declare waiting: Kind | null;
+  /** Apply the plan's advised pre-emphasis to the coil-ready clip. */
+  declare emphasis: boolean;
 
   private readonly audio = new AudioController(this);
   private readonly jobs = { render: new JobController(this), preview: new JobController(this) };
@@ -50,13 +53,14 @@ export class ListenScreen extends LitElement {
     this.gainDb = null;
     this.cautionsRead = false;
     this.waiting = null;
+    this.emphasis = true;
   }
 
   private makeTask(kind: Kind) {
     return new Task(this, {
       autoRun: false,
-      task: async ([planId, gainDb]: [string, number | null]): Promise<Render> => {
-        const { render, job } = await startRender(planId, { kind, gainDb });
+      task: async ([planId, gainDb, preEmphasisDb]: [string, number | null, number | undefined]): Promise<Render> => {
+        const { render, job } = await startRender(planId, preEmphasisDb === undefined ? { kind, gainDb } : { kind, gainDb, preEmphasisDb });
         const done = await this.jobs[kind].watch(job);
         const r = await getRender(done.resultId ?? render.id);
         this.audio.setSource(kind, renderAudioUrl(r.id));
@@ -89,7 +93,9 @@ export class ListenScreen extends LitElement {
       this.dispatchEvent(new CustomEvent('cautions-needed', { bubbles: true, composed: true }));
       return;
     }
-    void this.tasks[kind].run([this.plan.id, this.gainDb]);
+    const p = this.plan.document.preEmphasis;
+    const shelf = kind === 'render' && this.emphasis && p?.advised ? p.shelfGainDb : undefined;
+    void this.tasks[kind].run([this.plan.id, this.gainDb, shelf]);
   }
 
   private renderBlock(kind: Kind) {
@@ -100,12 +106,16 @@ export class ListenScreen extends LitElement {
     const title = kind === 'render' ? 'Coil-ready clip' : 'Arc-sound preview';
     const what =
       kind === 'render'
-        ? 'The modulation source at the chosen gain, with the advised pre-emphasis and a limiter that keeps the ceiling: the file to play into the driver.'
+        ? 'The modulation source at the chosen gain, through a limiter that keeps the ceiling, checked again in closed loop: the file to play into the driver.'
         : 'What the arcs will sound like: the coil’s envelope response applied, never louder than the original.';
     const summary = r?.summary as RenderSummary | null | undefined;
     return html`<section class="panel render-block" aria-labelledby=${`${kind}-title`}>
       <h3 id=${`${kind}-title`}>${title}</h3>
       <p class="muted">${what}</p>
+      ${kind === 'render' && this.plan?.document.preEmphasis?.advised
+        ? html`<p><label><input type="checkbox" .checked=${this.emphasis} @change=${(e: Event) => (this.emphasis = (e.target as HTMLInputElement).checked)} />
+            Apply the advised pre-emphasis: +${this.plan.document.preEmphasis.shelfGainDb.toFixed(1)} dB above ${formatSi(this.plan.document.preEmphasis.cornerHz, 'Hz')}</label></p>`
+        : nothing}
       <button type="button" class="primary" ?disabled=${!this.plan || busy} @click=${() => this.start(kind)}>
         ${r ? 'Make it again' : `Make the ${kind === 'render' ? 'coil-ready clip' : 'arc-sound preview'}`}
         at ${this.gainDb === null ? 'the advised gain' : formatDb(this.gainDb, 'dB', true)}

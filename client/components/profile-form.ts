@@ -73,6 +73,10 @@ export class ProfileForm extends LitElement {
     for (const sel of this.querySelectorAll<HTMLSelectElement>('select[data-value]')) {
       if (sel.value !== sel.dataset.value) sel.value = sel.dataset.value ?? '';
     }
+    // A folded list opens when the validator points into it (it is never folded under the person).
+    for (const d of this.querySelectorAll<HTMLDetailsElement>('details[data-path]')) {
+      if (this.errorField && (this.errorField === d.dataset.path || this.errorField.startsWith(`${d.dataset.path}.`))) d.open = true;
+    }
   }
 
   private emit(path: string, v: unknown): void {
@@ -149,7 +153,29 @@ export class ProfileForm extends LitElement {
           </fieldset>`;
         }
         const items = (Array.isArray(v) ? v : []) as unknown[];
-        return html`<fieldset class="group list">
+        // A list inside a list item (a device's Foster cells) starts folded, unless it holds an error.
+        if (/\.\d+(\.|$)/.test(path)) {
+          return html`<details class="nested-list" data-path=${path}>
+            <summary>${labelOfKey(key)}: ${items.length} ${items.length === 1 ? 'entry' : 'entries'}</summary>
+            ${this.listBody(node, path, key, k, items, removable)}
+          </details>`;
+        }
+        return this.listBody(node, path, key, k, items, removable);
+      }
+      default:
+        return html`<p class="help">${labelOfKey(key)}: edit this field in the exported file.</p>`;
+    }
+  }
+
+  private listBody(
+    node: SchemaNode,
+    path: string,
+    key: string,
+    k: { item: SchemaNode; minItems: number; maxItems: number },
+    items: unknown[],
+    removable: TemplateResult | typeof nothing,
+  ): TemplateResult {
+    return html`<fieldset class="group list">
           <legend>${labelOfKey(key)}</legend>
           ${describeNode(node) ? html`<p class="help">${describeNode(node)}</p>` : nothing}
           ${items.map((item, i) => {
@@ -166,12 +192,8 @@ export class ProfileForm extends LitElement {
           ${items.length < k.maxItems
             ? html`<button type="button" @click=${() => this.emit(path, [...items, defaultFor(k.item)])}>Add to ${labelOfKey(key)}</button>`
             : nothing}
-          ${this.errorFor(path, [])}
+          ${this.errorFor(path, [])} ${removable}
         </fieldset>`;
-      }
-      default:
-        return html`<p class="help">${labelOfKey(key)}: edit this field in the exported file.</p>`;
-    }
   }
 
   private errorFor(path: string, own: string[]): TemplateResult | typeof nothing {

@@ -26,7 +26,7 @@ type Kind = 'coil' | 'driver';
  * with the coil's figures recomputed in the browser on every keystroke. Save replaces the stored
  * profile, "Save as new" stores a copy, Import reads a profile file, Export downloads the saved one.
  *
- * Properties: `coils`, `drivers`, `coilId`, `driverId`.
+ * Properties: `coils`, `drivers`, `coilId`, `driverId`, `active` (shown now).
  * Events: `rig-select` { coilId?, driverId? } when the person picks another profile;
  *   `rig-saved` { kind: 'coil' | 'driver', item: Coil | Driver } after a save or an import.
  */
@@ -39,6 +39,7 @@ export class RigScreen extends LitElement {
     coilDraft: { state: true },
     driverDraft: { state: true },
     message: { state: true },
+    active: { type: Boolean },
   };
 
   declare coils: Coil[];
@@ -48,6 +49,9 @@ export class RigScreen extends LitElement {
   declare coilDraft: Record<string, unknown> | null;
   declare driverDraft: Record<string, unknown> | null;
   declare message: { kind: Kind; ok: boolean; text: string } | null;
+  /** Whether the screen is shown; the forms are built the first time it is (the figures always). */
+  declare active: boolean;
+  private shown = false;
 
   private live: LiveFigures = { report: null, coilProblem: null, driverProblem: null };
   private lastGood: CoilReport | null = null;
@@ -85,6 +89,7 @@ export class RigScreen extends LitElement {
     this.coilDraft = null;
     this.driverDraft = null;
     this.message = null;
+    this.active = true;
   }
 
   protected override createRenderRoot(): HTMLElement {
@@ -96,6 +101,7 @@ export class RigScreen extends LitElement {
   }
 
   protected override willUpdate(): void {
+    if (this.active) this.shown = true;
     // A newly chosen (or newly saved) profile replaces the draft.
     const coil = this.coils.find((c) => c.id === this.coilId) ?? null;
     const coilKey = coil ? `${coil.id}@${coil.updatedAt}` : '';
@@ -183,7 +189,7 @@ export class RigScreen extends LitElement {
         <h2>What this coil does</h2>
         <coil-figures .report=${this.live.report ?? this.lastGood} ?stale=${!this.live.report && !!this.lastGood}></coil-figures>
       </div>
-      ${this.panel('coil')} ${this.panel('driver')}
+      ${this.shown ? html`${this.panel('coil')} ${this.panel('driver')}` : nothing}
     </div>`;
   }
 }

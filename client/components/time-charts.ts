@@ -38,6 +38,13 @@ export class TimeCharts extends LitElement {
   private range: { fromS: number; toS: number } | null = null;
   private readonly settle = new DebounceController(this, 120);
   private resize: ResizeObserver | null = null;
+  private scheme: MediaQueryList | null = null;
+  /** Light or dark changed: the charts read their colours when made, so make them again. */
+  private readonly onScheme = (): void => {
+    for (const p of this.plots.values()) p.destroy();
+    this.plots.clear();
+    this.requestUpdate();
+  };
 
   constructor() {
     super();
@@ -66,11 +73,16 @@ export class TimeCharts extends LitElement {
       });
       this.resize.observe(this);
     }
+    if (typeof matchMedia !== 'undefined') {
+      this.scheme = matchMedia('(prefers-color-scheme: dark)');
+      this.scheme.addEventListener('change', this.onScheme);
+    }
   }
 
   override disconnectedCallback(): void {
     super.disconnectedCallback();
     this.resize?.disconnect();
+    this.scheme?.removeEventListener('change', this.onScheme);
     for (const p of this.plots.values()) p.destroy();
     this.plots.clear();
   }
@@ -151,7 +163,8 @@ export class TimeCharts extends LitElement {
       return;
     }
     if (old && old.series.length === spec.series && box.contains(old.root)) {
-      old.setData(spec.data, false);
+      // New data re-ranges the value axis (hotter curves stay in view); the time range is put back.
+      old.setData(spec.data, true);
       this.applyRange(old);
       return;
     }
@@ -177,7 +190,8 @@ export class TimeCharts extends LitElement {
       cursor: { sync: { key: SYNC_KEY }, drag: { x: true, y: false, setScale: true } },
       legend: { live: true },
       axes: [axis('time', 's'), axis(yQuantity, yUnit, { size: 60 })],
-      series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : v.toFixed(3)) }, ...series],
+      // No point markers: lines only, which keeps zoomed-in redraws cheap.
+      series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : v.toFixed(3)) }, ...series.map((x) => ({ ...x, points: { show: false } }))],
       hooks: {
         setScale: [
           (u, key) => {
@@ -215,7 +229,7 @@ export class TimeCharts extends LitElement {
         series: 4,
         data: [m.timeS, m.railMaxV, m.railMinV, supply] as uPlot.AlignedData,
         opts: (w: number) => ({
-          ...this.base(w, 170, 'rail voltage', 'V', [
+          ...this.base(w, 190, 'rail voltage', 'V', [
             { label: 'highest rail', stroke: seriesColour(0), width: 1 },
             { label: 'lowest rail', stroke: seriesColour(1), width: 1, dash: DASHES[1] },
             { label: `supply ${m.supplyVoltageV} V`, stroke: cssVar('--fg'), width: 2, dash: DASHES[2] },
@@ -258,7 +272,7 @@ export class TimeCharts extends LitElement {
     return {
       series: series.length + 1,
       data: data as uPlot.AlignedData,
-      opts: (w: number) => this.base(w, 200, 'junction temperature', '°C', series),
+      opts: (w: number) => this.base(w, 250, 'junction temperature', '°C', series),
     };
   }
 }

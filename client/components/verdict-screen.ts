@@ -105,6 +105,8 @@ export class VerdictScreen extends LitElement {
   }
 
   protected override updated(): void {
+    // When the answer was first drawn, ms after navigation (the page's speed figure reads it).
+    if (this.plan && !this.dataset.drawnAtMs) this.dataset.drawnAtMs = performance.now().toFixed(0);
     const ev = this.evaluation.value;
     if (ev && this.releasedAt > 0 && this.evaluation.status === 2) {
       this.lastEvaluateMs = performance.now() - this.releasedAt;

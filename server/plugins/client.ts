@@ -12,7 +12,7 @@ import { sendProblem } from './errors.ts';
 const NOT_BUILT = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>coilcue</title>
 <style>body{font:16px system-ui,sans-serif;max-width:36rem;margin:4rem auto;padding:0 1rem}code{background:#eee;padding:.1rem .3rem}</style></head>
 <body><h1>coilcue</h1><p>The server is running, but the web client is not built yet.</p>
-<p>Build it with <code>npm run build</code> (it writes <code>client/dist/</code>), then reload this page.</p>
+<p>Build it with <code>npm run build:client</code> (it writes <code>client/dist/</code>), then reload this page.</p>
 <p>The HTTP API answers at <a href="/api/health">/api/health</a>; every route is described at <a href="/api/openapi.json">/api/openapi.json</a>.</p></body></html>`;
 
 async function createClient(app: FastifyInstance): Promise<void> {

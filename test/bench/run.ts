@@ -25,6 +25,7 @@ import { synthLongDemo } from '../../shared/demo/clips.ts';
 import { runEngineBench } from './engine-bench.ts';
 import { runPlanBench } from './plan-bench.ts';
 import { runServerBench } from './server-bench.ts';
+import { printWebBench } from './web-bench.ts';
 
 const DURATION_S = 300;
 const here = fileURLToPath(new URL('.', import.meta.url));
@@ -116,6 +117,7 @@ try {
   await runPlanBench(wav);
   await runEngineBench(dir, wav);
   await runServerBench(wav, totalS);
+  printWebBench();
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }
