@@ -9,21 +9,11 @@ import { decodeAudioBytes } from '../../../server/audio/decode.ts';
 import { analyzeClip } from '../../../shared/analysis/analyze-clip.ts';
 import { summarizeAnalysis } from '../../../shared/analysis/summary.ts';
 import { isInputError } from '../../../shared/errors.ts';
+import { everyNumberFinite } from './finite.ts';
 import { buildWav } from './wav-builder.ts';
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/audio');
 const fixture = (name: string) => new Uint8Array(readFileSync(join(FIXTURES, name)));
-
-/** Every number reachable in a JSON document: finite, or null (−∞ dB written as null by the summary). */
-export function everyNumberFinite(doc: unknown, path = '$'): string | null {
-  if (typeof doc === 'number') return Number.isFinite(doc) ? null : `${path} = ${doc}`;
-  if (doc === null || typeof doc !== 'object') return null;
-  for (const [k, v] of Object.entries(doc)) {
-    const bad = everyNumberFinite(v, `${path}.${k}`);
-    if (bad) return bad;
-  }
-  return null;
-}
 
 /** What decoding and analysing damaged bytes led to: 'input-error' (with its code) or 'analysed'. */
 async function outcome(bytes: Uint8Array): Promise<{ kind: 'input-error'; code: string; message: string } | { kind: 'analysed' }> {

@@ -13,6 +13,7 @@ import { evaluateAtGain, planSettings } from '../../../shared/plan/evaluate.ts';
 import { parseCoilProfile } from '../../../shared/schemas/coil.ts';
 import { parseDriverProfile } from '../../../shared/schemas/driver.ts';
 import { parseSetFile } from '../../../shared/schemas/set.ts';
+import { everyNumberFinite } from '../../server/audio/finite.ts';
 import { COIL, planClip, tone } from '../plan/fixtures.ts';
 
 const MISSING = Symbol('missing');
@@ -35,18 +36,6 @@ function withValue(x: unknown, path: string, value: unknown): unknown {
   if (value === MISSING) delete at[last];
   else at[last] = value;
   return copy;
-}
-
-/** First non-finite number in a result (null is how the reports write "none" or −∞ dB). */
-function firstNonFinite(doc: unknown, path = '$'): string | null {
-  if (typeof doc === 'number') return Number.isFinite(doc) ? null : `${path} = ${doc}`;
-  if (doc === null || typeof doc !== 'object') return null;
-  if (ArrayBuffer.isView(doc)) return firstNonFinite(Array.from(doc as Float64Array), path);
-  for (const [k, v] of Object.entries(doc)) {
-    const bad = firstNonFinite(v, `${path}.${k}`);
-    if (bad) return bad;
-  }
-  return null;
 }
 
 /** Numbers whose name says they are resistances must not be negative. */
@@ -85,7 +74,7 @@ describe('coil profiles: each numeric field, each bad value', () => {
             continue;
           }
           const report = analyzeCoil(profile);
-          expect(firstNonFinite(report), `${path} = ${String(value)}`).toBeNull();
+          expect(everyNumberFinite(report), `${path} = ${String(value)}`).toBeNull();
           expect(firstNegativeResistance(report), `${path} = ${String(value)}`).toBeNull();
           modelled++;
         }
@@ -117,7 +106,7 @@ describe('driver profiles: each numeric field, each bad value', () => {
           const settings = planSettings(profile);
           const ev = evaluateAtGain(clip, COIL, profile, 0, settings);
           const at = `${path} = ${String(value)}`;
-          expect(firstNonFinite(ev.limits), at).toBeNull();
+          expect(everyNumberFinite(ev.limits), at).toBeNull();
           for (const d of ev.sim.devices) {
             expect(Number.isFinite(d.peakJunctionC), at).toBe(true);
             expect(d.peakJunctionC, at).toBeGreaterThanOrEqual(settings.ambientC - 1e-9);
