@@ -134,11 +134,21 @@ export async function runServerBench(wav: string, cliAnalyzeS: number): Promise<
       console.log(`  re-evaluation at a new gain, ${d.profile.scheme.padEnd(13)} median of 5: ${median(times).toFixed(0)} ms (runs ${times.map((x) => x.toFixed(0)).join(', ')}; target ≤ ${target} ms): ${met(median(times) <= target)}`);
     }
 
-    // Two analyses at once (the same clip at two frame lengths), health under load meanwhile.
+    // Health and profile reads with nothing running (autocannon, 4 connections, 3 s each).
+    const figures = (r: Awaited<ReturnType<typeof autocannon>>) => `${r.requests.average.toFixed(0)} requests/s, p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms`;
+    const idleHealth = await autocannon({ url: `${base}/api/health`, connections: 4, duration: 3 });
+    const idleCoils = await autocannon({ url: `${base}/api/coils`, connections: 4, duration: 3 });
+    console.log(`  idle: GET /api/health ${figures(idleHealth)}; GET /api/coils ${figures(idleCoils)}`);
+
+    // Two analyses at once (the same clip at two frame lengths), health and profile reads under load meanwhile.
     await snapshot();
     const a = await post(base, `/api/clips/${clip.id}/analyses`, { frameMs: 2 });
     const b = await post(base, `/api/clips/${clip.id}/analyses`, { frameMs: 5 });
-    const load = await autocannon({ url: `${base}/api/health`, connections: 4, duration: 5 });
+    const [load, busyCoils] = await Promise.all([
+      autocannon({ url: `${base}/api/health`, connections: 4, duration: 5 }),
+      autocannon({ url: `${base}/api/coils`, connections: 2, duration: 5 }),
+    ]);
+    console.log(`  while two analyses run: GET /api/coils ${figures(busyCoils)}`);
     await Promise.all([waitJob(base, a.body.job.id), waitJob(base, b.body.job.id)]);
     const during = await snapshot();
     console.log(`  GET /api/health while two analyses run (autocannon, 4 connections, 5 s): p50 ${load.latency.p50} ms, p99 ${load.latency.p99} ms, ${load.requests.average.toFixed(0)} requests/s (target p99 < 50 ms): ${met(load.latency.p99 < 50)}`);
