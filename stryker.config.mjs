@@ -23,7 +23,7 @@ export default {
   incremental: true,
   incrementalFile: `stryker/incremental-${name}.json`,
   concurrency: 1,
-  timeoutMS: 60000,
+  timeoutMS: 10000,
   reporters: ['clear-text', 'progress', 'json'],
   jsonReporter: { fileName: `stryker/report-${name}.json` },
   tempDirName: '.stryker-tmp',
