@@ -32,7 +32,7 @@ export function formatCoilReport(r: CoilReport): string {
     row(`DC resistance at ${s.wireTempC} °C`, formatEng(s.dcResistanceHotOhm, 'Ω')),
     row('skin depth at resonance', formatEng(s.skinDepthM, 'm')),
     row('AC resistance (skin and proximity)', `${formatEng(s.acResistanceOhm, 'Ω')}   [isolated wire ×${num3(s.acToDcRatio)} DC, Medhurst proximity ×${num3(s.proximityFactor)}]`),
-    row("self-capacitance (Medhurst's table)", `${formatEng(s.selfCapacitanceF, 'F')}   [Radiotron fit ${formatEng(m.radiotronFitF, 'F')}, Knight air-core ${formatEng(m.knightAirCoreF, 'F')}; spread ${s.selfCapacitanceSpreadPercent.toFixed(0)} %]`),
+    row("self-capacitance (Medhurst's table)", `${formatEng(s.selfCapacitanceF, 'F')}   [Radiotron fit ${formatEng(m.radiotronFitF, 'F')}; spread ${s.selfCapacitanceSpreadPercent.toFixed(0)} %]`),
     '',
     `Top load: ${r.topLoad.shape}`,
     row('capacitance (isolated)', r.topLoad.shape === 'none' ? '—' : formatEng(r.topLoad.capacitanceF, 'F')),
@@ -41,7 +41,7 @@ export function formatCoilReport(r: CoilReport): string {
     '',
     'Resonance and losses',
     row('resonance', `${formatEng(r.resonanceHz, 'Hz')}   (${r.resonanceMeasuredHz === null ? 'computed' : 'measured'})`),
-    row('computed resonance', `${formatEng(r.resonanceComputedHz, 'Hz')}   [by model: ${formatEng(r.resonanceByModelHz.medhurstTableHz, 'Hz')}, ${formatEng(r.resonanceByModelHz.radiotronFitHz, 'Hz')}, ${formatEng(r.resonanceByModelHz.knightAirCoreHz, 'Hz')}]`),
+    row('computed resonance', `${formatEng(r.resonanceComputedHz, 'Hz')}   [by model: ${formatEng(r.resonanceByModelHz.medhurstTableHz, 'Hz')}, ${formatEng(r.resonanceByModelHz.radiotronFitHz, 'Hz')}]`),
     row('measured vs computed', pct(r.resonanceDiscrepancyPercent)),
     row(
       'quality factor Q',
