@@ -1,0 +1,74 @@
+import { describe, expect, it } from 'vitest';
+import type { WelchSpectrum } from '../../../shared/dsp/welch.ts';
+import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
+import { fullOperationLossW, preEmphasisAdvice } from '../../../shared/plan/report.ts';
+import { COIL } from './fixtures.ts';
+
+// Edges of the full-operation losses and the pre-emphasis advice, against hand values.
+
+describe('fullOperationLossW: each device at its own worst point, R_ds(on) at the limit temperature', () => {
+  it('demo linear: bridge at full rail, pass device at half rail (g·V_s²/4 = 36 W, no R_ds(on) part)', () => {
+    // Bridge (half-bridge MOSFET, R 0.08 Ω, α 0.007, limit 150 − 25 = 125 °C → ×1.7): (π/2)²·R·1.7·I² with
+    // I = 3 A, plus switching ½·k_pk·V·I·(t_r + t_f)·f0 and C_oss ½·C·V²·f0 at f0 = 300 kHz.
+    const [bridge, pass] = fullOperationLossW(DEMO_DRIVER_LINEAR, COIL, { marginK: 25 });
+    const cond = (Math.PI / 2) ** 2 * 0.08 * 1.7 * 9;
+    expect(bridge).toBeGreaterThan(cond);
+    expect(Math.abs(pass - 36)).toBeLessThan(1e-9);
+    // A bigger margin cools the limit temperature: less bridge loss, the pass device unchanged.
+    const [b50, p50] = fullOperationLossW(DEMO_DRIVER_LINEAR, COIL, { marginK: 50 });
+    expect(Math.abs(bridge - b50 - (Math.PI / 2) ** 2 * 0.08 * 0.007 * 25 * 9)).toBeLessThan(1e-9);
+    expect(p50).toBe(pass);
+  });
+
+  it('demo pulse: the bridge during a pulse; a device the scheme does not use counts 0', () => {
+    const [bridge] = fullOperationLossW(DEMO_DRIVER_PULSE, COIL, { marginK: 25 });
+    expect(bridge).toBeGreaterThan(0);
+    const extra = { ...DEMO_DRIVER_PULSE, devices: [...DEMO_DRIVER_PULSE.devices, { ...DEMO_DRIVER_BUCK.devices[1] }] };
+    const both = fullOperationLossW(extra, COIL, { marginK: 25 });
+    expect(both[0]).toBe(bridge);
+    expect(both[1]).toBe(0);
+  });
+
+  it('demo buck: the modulator is worst where its switching starts to stop, not at 100 % duty', () => {
+    // At 100 % duty: conduction only, 1.8·R·g²·V_s² = 1.8·0.1·16 = 2.88 W; the worst is 5.121 W at 159.04 V.
+    const [, mod] = fullOperationLossW(DEMO_DRIVER_BUCK, COIL, { marginK: 25 });
+    expect(mod).toBeGreaterThan(2.88 + 2);
+    expect(Math.abs(mod - 5.1213)).toBeLessThan(1e-3);
+  });
+});
+
+describe('preEmphasisAdvice: corners and counting', () => {
+  const spectrum = (f: number[], p: number[]): WelchSpectrum => ({
+    frequencyHz: Float64Array.from([0, ...f]),
+    psd: Float64Array.from([1e3, ...p]),
+    binHz: 1,
+    segments: 1,
+    size: 2 * f.length,
+  });
+
+  it('counts power strictly above the corner, at the high end of the range', () => {
+    // Power 1 at 1 kHz (on the corner: not above it) and 3 at 4 kHz: above-fraction 3/4 at fc = 1 kHz.
+    const a = preEmphasisAdvice(spectrum([1000, 4000], [1, 3]), 1000)!;
+    expect(a.energyAboveCornerFraction).toBeCloseTo(0.75, 12);
+    // Range 1…4 kHz: counted at 4 kHz, where nothing lies strictly above.
+    const b = preEmphasisAdvice(spectrum([1000, 4000], [1, 3]), { lowHz: 1000, highHz: 4000 })!;
+    expect(b.energyAboveCornerFraction).toBe(0);
+    // Loss at 4 kHz: |H|² = 16/17 and ½ → 10·log10(4/(16/17 + 1.5)) = 2.14 dB; at 1 kHz: ½ and 1/17 → 10·log10(4/(0.5 + 3/17)).
+    expect(b.envelopeLossDb).toBeCloseTo(10 * Math.log10(4 / (16 / 17 + 1.5)), 12);
+    expect(b.envelopeLossRangeDb.atLowCornerDb).toBeCloseTo(10 * Math.log10(4 / (0.5 + 3 / 17)), 12);
+    expect(b.shelfGainDb).toBe(2.1);
+    expect(b.basis).toMatch(/between 1000 and 4000 Hz/);
+    expect(b.basis).toMatch(/is restored/);
+  });
+
+  it('says "considered", not "restored", when nothing is advised; refuses a bad corner', () => {
+    const c = preEmphasisAdvice(spectrum([100, 200], [1, 1]), { lowHz: 500, highHz: 5000 })!;
+    expect(c.advised).toBe(false);
+    expect(c.basis).toMatch(/is considered/);
+    expect(preEmphasisAdvice(spectrum([100], [1]), { lowHz: 0, highHz: 100 })).toBeNull();
+    expect(preEmphasisAdvice(spectrum([100], [1]), { lowHz: -1, highHz: 100 })).toBeNull();
+    expect(preEmphasisAdvice(spectrum([100], [1]), Number.NaN)).toBeNull();
+    // Equal ends are fine (a measured Q).
+    expect(preEmphasisAdvice(spectrum([100], [1]), { lowHz: 100, highHz: 100 })!.cornerHz).toBe(100);
+  });
+});
