@@ -58,7 +58,10 @@ export function formatCoilReport(r: CoilReport): string {
     row('ring-up time constant Q/(π f0)', formatEng(r.ringUpTauS, 's')),
     '',
     'Primary and coupling',
-    row('primary inductance (current sheet)', formatEng(r.primary.inductanceH, 'H')),
+    row(
+      `primary inductance (${r.primary.inductanceMethod === 'turn-sum' ? 'turn by turn' : 'current sheet'})`,
+      r.primary.inductanceMethod === 'turn-sum' ? `${formatEng(r.primary.inductanceH, 'H')}   [current sheet ${formatEng(r.primary.inductanceCurrentSheetH, 'H')}]` : formatEng(r.primary.inductanceH, 'H'),
+    ),
     row('mutual inductance (Maxwell, turn pairs)', formatEng(r.mutualInductanceH, 'H')),
     row('coupling k', num3(r.couplingK)),
     '',
