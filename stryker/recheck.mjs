@@ -6,7 +6,15 @@
 import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 
-const [name, ...tests] = process.argv.slice(2);
+// Optional `--only <log>`: re-check only the mutants an earlier re-check printed as "survived".
+const args = process.argv.slice(2);
+let only = null;
+const at = args.indexOf('--only');
+if (at >= 0) {
+  only = new Set(readFileSync(args[at + 1], 'utf8').split('\n').filter((l) => l.startsWith('survived')).map((l) => l.split(/\s+/).slice(1, 3).join(' ')));
+  args.splice(at, 2);
+}
+const [name, ...tests] = args;
 const report = JSON.parse(readFileSync(new URL(`./report-${name}.json`, import.meta.url), 'utf8'));
 const results = [];
 for (const [file, f] of Object.entries(report.files)) {
@@ -14,6 +22,8 @@ for (const [file, f] of Object.entries(report.files)) {
   const lines = original.split('\n');
   const offset = (loc) => lines.slice(0, loc.line - 1).reduce((n, l) => n + l.length + 1, 0) + loc.column - 1;
   for (const m of f.mutants.filter((x) => x.status === 'Survived' || x.status === 'NoCoverage')) {
+    const key = `${file}:${m.location.start.line}:${m.location.start.column} ${m.mutatorName}`;
+    if (only && !only.has(key)) continue;
     const a = offset(m.location.start);
     const b = offset(m.location.end);
     writeFileSync(file, original.slice(0, a) + m.replacement + original.slice(b));

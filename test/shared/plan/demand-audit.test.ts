@@ -66,6 +66,9 @@ describe('dutyBudget and firstCrossing at their edges', () => {
     // 50 K over 10 W·2 K/W = 2.5 → capped at 1; 10 K → 0.5 (hand values).
     expect(Array.from(dutyBudget(L, 50, 10, zth))).toEqual([1, 1]);
     expect(Array.from(dutyBudget(L, 10, 10, zth))).toEqual([0.5, 0.5]);
+    // No allowed rise wins over a lossless device (0, not 1); a negative loss (nonsense) never heats.
+    expect(Array.from(dutyBudget(L, 0, 0, zth))).toEqual([0, 0]);
+    expect(Array.from(dutyBudget(L, 10, -5, zth))).toEqual([1, 1]);
     // Zth is read at each length.
     expect(Array.from(dutyBudget(L, 10, 10, (t) => t * 100))).toEqual([1, 0.01]);
   });

@@ -107,6 +107,16 @@ describe('demand series edges', () => {
     expect(b.crossing).toBeNull();
   });
 
+  it('a rail driver uses its rail loss model even when the profile and the clip also carry pulse data', () => {
+    // The schema lets a rail profile keep `pulse` limits; the demand must still be E[v²]/V_s² for its
+    // MOSFET bridge (α = 0: (1 + g²A²/2)/4 for a steady tone at gain g, hand value), not a pulse duty.
+    const base = linearDriver(mosfet('bridge', { rKPerW: 1, tauS: 0.004, sinkToAmbientKPerW: 14 }), mosfet('pass', { rKPerW: 0.5, tauS: 0.004, sinkToAmbientKPerW: 1 }));
+    const d = { ...base, pulse: { maxOnTimeS: 150e-6, minOffTimeS: 5e-4, maxDuty: 0.1 } };
+    const clip = planClip('t', tone(1000, 0.5, 1), { pulses: true });
+    const r = planClipReport(clip, COIL_WITH_CORNER, d, planSettings(d), { gainDb: 0 }).report;
+    for (const m of r.budget.find((x) => x.role === 'bridge')!.demand) expect(Math.abs(m - (1 + 0.25 / 2) / 4)).toBeLessThan(2e-3);
+  });
+
   it('spreads a pulse that crosses a frame boundary over both frames', () => {
     // Pulses start at the tone's upward zero crossings; with this phase they fall near the end of a
     // 1 ms frame and run into the next. Per-frame on-time fractions worked out here from the train:
