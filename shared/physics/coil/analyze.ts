@@ -9,12 +9,7 @@ import { couplingCoefficient, windingMutualInductanceH } from './mutual.ts';
 import { nagaokaCoefficient } from './nagaoka.ts';
 import { medhurstProximityFactor } from './proximity.ts';
 import { modulationCornerHz, qualityFactor, resonanceHz, ringUpTauS } from './resonance.ts';
-import {
-  knightAirCoreSelfCapacitanceF,
-  medhurstSelfCapacitanceF,
-  medhurstTableCovers,
-  radiotronSelfCapacitanceF,
-} from './self-capacitance.ts';
+import { medhurstSelfCapacitanceF, medhurstTableCovers, radiotronSelfCapacitanceF } from './self-capacitance.ts';
 import { type TankReport, tankReport } from './tank.ts';
 import { sphereCapacitanceF, thinRingCapacitanceF, torusCapacitanceF } from './top-load.ts';
 import {
@@ -105,8 +100,8 @@ export interface CoilReport {
     proximityFactor: number;
     /** Medhurst's table. */
     selfCapacitanceF: number;
-    selfCapacitanceModels: { medhurstTableF: number; radiotronFitF: number; knightAirCoreF: number };
-    /** (largest − smallest)/Medhurst of the three models, %. */
+    selfCapacitanceModels: { medhurstTableF: number; radiotronFitF: number };
+    /** (largest − smallest)/Medhurst of the two models, %. */
     selfCapacitanceSpreadPercent: number;
     selfCapacitanceInTable: boolean;
   };
@@ -121,7 +116,7 @@ export interface CoilReport {
   /** (measured − computed)/computed, %. */
   resonanceDiscrepancyPercent: number | null;
   /** Computed resonance with each self-capacitance model. */
-  resonanceByModelHz: { medhurstTableHz: number; radiotronFitHz: number; knightAirCoreHz: number };
+  resonanceByModelHz: { medhurstTableHz: number; radiotronFitHz: number };
   /** Measured where given, else computed. */
   qualityFactor: number;
   /**
@@ -219,7 +214,6 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   const models = {
     medhurstTableF: medhurstSelfCapacitanceF(D, l),
     radiotronFitF: radiotronSelfCapacitanceF(D, l),
-    knightAirCoreF: knightAirCoreSelfCapacitanceF(D, l, N),
   };
   const cSelf = models.medhurstTableF;
   const all = Object.values(models);
@@ -291,12 +285,11 @@ export function analyzeCoil(profileIn: CoilProfile, drive: CoilDriveContext = {}
   const byModel = {
     medhurstTableHz: resonanceHz(L2, models.medhurstTableF + cOther),
     radiotronFitHz: resonanceHz(L2, models.radiotronFitF + cOther),
-    knightAirCoreHz: resonanceHz(L2, models.knightAirCoreF + cOther),
   };
   const fModels = Object.values(byModel);
   const kHz = (f: number): string => (f / 1e3).toFixed(1);
   const notes: string[] = [
-    `Self-capacitance is Medhurst's table (coils on solid polystyrene rods); the Radiotron fit and Knight's air-core model differ from it by up to ${spreadPercent.toFixed(0)} % for this coil, putting the computed resonance anywhere from ${kHz(Math.min(...fModels))} to ${kHz(Math.max(...fModels))} kHz: measure it and enter measured.resonanceHz.`,
+    `Self-capacitance is Medhurst's table (coils on solid polystyrene rods); the Radiotron fit differs from it by ${spreadPercent.toFixed(0)} % for this coil (computed resonance ${kHz(Math.min(...fModels))} to ${kHz(Math.max(...fModels))} kHz), and an air-wound coil on a thin tube can have markedly less: measure the resonance and enter measured.resonanceHz.`,
     "Top-load capacitance is the isolated electrode's; mounted on the coil, both it and the coil's self-capacitance change, so their sum is an approximation.",
     `AC resistance includes the proximity of neighbouring turns by Medhurst's 1947 factor (×${phi.toFixed(2)} at l/D ${(l / D).toFixed(2)}, d/p ${((s.wireDiameterM * N) / l).toFixed(2)}, measured where the skin effect is fully developed); the former's dielectric loss and radiation are not in it, so the computed Q is still an upper bound: measure Q and enter measured.qualityFactor.`,
   ];

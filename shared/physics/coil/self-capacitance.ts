@@ -1,9 +1,10 @@
 /**
- * Self-capacitance of a single-layer solenoid: Medhurst's measured table (the reference), the
- * Radiotron Designer's Handbook closed-form fit to it, and Knight's air-core model. They disagree by
- * up to ~40 %: treat any one of them as an estimate, and a measured resonance as the truth.
+ * Self-capacitance of a single-layer solenoid: Medhurst's measured table (the reference) and the
+ * Radiotron Designer's Handbook closed-form fit to it. Air-wound coils on thin tubes can sit well
+ * below the table (the table's coils were on solid polystyrene rods): treat any figure here as an
+ * estimate, and a measured resonance as the truth. (An air-core model after D. W. Knight was
+ * removed: its coefficients could not be confirmed against the published paper.)
  */
-import { EPS0_F_PER_M } from '../constants.ts';
 
 /**
  * Medhurst's table (R. G. Medhurst, "H.F. resistance and self-capacitance of single-layer
@@ -61,21 +62,4 @@ const radiotronH = (lOverD: number): number => 0.1126 * lOverD + 0.08 + 0.27 * M
  */
 export function radiotronSelfCapacitanceF(diameterM: number, lengthM: number): number {
   return radiotronH(lengthM / diameterM) * diameterM * F_PER_H_M;
-}
-
-/**
- * Knight's air-cored model (D. W. Knight, "The self-resonance and self-capacitance of solenoid
- * coils", 2010–2016, §5), for a coil with air inside and out (εi = εx = 1):
- *   C = (4ε0/π)·l·(1 + k_c)/cos²ψ,  k_c = 0.717439·(D/l) + 0.933048·(D/l)^{3/2} + 0.106·(D/l)²,
- * ψ the pitch angle, tan ψ = p/(πD). It reconciles Medhurst's solid-former data with air-cored
- * measurements and gives 6–43 % less than the table for l/D ≤ 10. The k_c coefficients are
- * recalled from Knight's paper, not re-read; they reproduce the 4.84 pF of the reference case.
- * Example: D = 0.1 m, l = 0.3 m, N = 1000 → 4.84 pF.
- */
-export function knightAirCoreSelfCapacitanceF(diameterM: number, lengthM: number, turns: number): number {
-  const y = diameterM / lengthM;
-  const kc = 0.717439 * y + 0.933048 * Math.pow(y, 1.5) + 0.106 * y * y;
-  const tanPsi = lengthM / turns / (Math.PI * diameterM);
-  const cos2Psi = 1 / (1 + tanPsi * tanPsi);
-  return ((4 * EPS0_F_PER_M) / Math.PI) * lengthM * (1 + kc) / cos2Psi;
 }

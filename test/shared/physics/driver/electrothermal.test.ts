@@ -31,8 +31,8 @@ describe('solveElectrothermal', () => {
   });
 
   it('makes the Rds(on) feedback raise the loss above the 25 °C figure once the junction is warmer', () => {
-    // Positive temperature coefficient of silicon MOSFET on-resistance (REFERENCES §7 [sec]: it roughly
-    // doubles from 300 K to 423 K); with α = 0.007/K and a 60 °C junction the I²R part is 1.245× higher.
+    // Positive temperature coefficient of silicon MOSFET on-resistance (it roughly doubles from 300 K to
+    // 423 K: B. J. Baliga, Fundamentals of Power Semiconductor Devices, 2008, ch. 6 [recalled]); with α = 0.007/K and a 60 °C junction the I²R part is 1.245× higher.
     const cold = solveElectrothermal(10, 2, 0, 60, 0, 150);
     const hot = solveElectrothermal(10, 2, 0.007, 60, 0, 150);
     expect(cold.powerW).toBeCloseTo(12, 12);

@@ -39,8 +39,9 @@ describe('simulatePulses: thermal response', () => {
     expect(sim.devices[0].peakAtS).toBeCloseTo(0.01015, 12);
   });
 
-  it('reaches the exact periodic steady peak of REFERENCES §7 under a long pulse train', () => {
-    // ΔT/P = Σ Rᵢ(1 − e^(−tp/τᵢ))/(1 − e^(−T/τᵢ)) over the network's Foster equivalent. A light sink
+  it('reaches the exact periodic steady peak under a long pulse train', () => {
+    // ΔT/P = Σ Rᵢ(1 − e^(−tp/τᵢ))/(1 − e^(−T/τᵢ)) over the network's Foster equivalent (superposed
+    // single-pulse responses of NXP AN11261's Foster model, a geometric series per cell [calc]). A light sink
     // (2 J/K, τ ≈ 3 s) lets 60 s (20 τ) reach the periodic state: transient e^-20 → tolerance 1e-6.
     const d = clone(D);
     d.devices[0].thermal.sinkHeatCapacityJPerK = 2;
@@ -77,7 +78,7 @@ describe('simulatePulses: thermal response', () => {
   });
 
   it('lets a MOSFET bridge heat its own loss up through Rds(on)(Tj)', () => {
-    // Positive temperature coefficient (REFERENCES §7): later pulses dissipate more than the first.
+    // Positive temperature coefficient of R_ds(on) (Baliga 2008, ch. 6 [recalled]): later pulses dissipate more than the first.
     const d = clone(DEMO_DRIVER_LINEAR);
     d.scheme = 'pulse';
     d.pulse = { maxOnTimeS: 1e-3, minOffTimeS: 1e-4, maxDuty: 0.5 };

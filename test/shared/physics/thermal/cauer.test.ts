@@ -10,8 +10,9 @@ const ladderZth = (cauer: ReturnType<typeof fosterToCauer>, t: number) =>
   ThermalNetwork.fromCauer(cauer, { caseToSinkKPerW: 0, sinkToAmbientKPerW: 0, sinkHeatCapacityJPerK: 0 }).zthKPerW(t);
 
 describe('fosterToCauer', () => {
-  it('converts the hand-checkable case of REFERENCES §7', () => {
-    // [calc] Foster R = [1, 1] K/W, C = [1, 0.1] J/K → Cauer R = [1.1980198, 0.8019802] K/W,
+  it('converts a hand-checkable two-cell case', () => {
+    // Cauer I continued-fraction synthesis of Z(s) (W. Cauer, 1926; the Foster-to-Cauer conversion of
+    // Infineon AN2008-03 [recalled]) worked by hand [calc]: Foster R = [1, 1] K/W, C = [1, 0.1] J/K → Cauer R = [1.1980198, 0.8019802] K/W,
     // C = [0.0909091, 1.1448934] J/K. Tolerance 5e-8: the reference is rounded to 7 decimals.
     const f = [
       { rKPerW: 1, tauS: 1 },

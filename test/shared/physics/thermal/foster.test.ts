@@ -46,7 +46,8 @@ describe('fosterZthKPerW', () => {
 
 describe('fosterStep', () => {
   it('reproduces the single-RC reference: 63.2121 K after 10 ms on, 23.2544 K after 10 ms off', () => {
-    // REFERENCES §7 [calc]: R = 2 K/W, τ = 10 ms, P = 50 W; 2·50·(1 − e⁻¹) and that times e⁻¹.
+    // One Foster RC, Zth(t) = R(1 − e^(−t/τ)) (NXP AN11261 "Using RC Thermal Models"), R = 2 K/W,
+    // τ = 10 ms, P = 50 W [calc]: 2·50·(1 − e⁻¹) and that times e⁻¹.
     // Tolerance 5e-5 K: the reference is given to 4 decimals.
     const st = [{ rKPerW: 2, tauS: 0.01 }];
     const th = new Float64Array(1);
@@ -68,7 +69,8 @@ describe('fosterStep', () => {
 
 describe('fosterPeriodicPeakKPerW', () => {
   it('matches the exact steady peak of a long pulse train stepped pulse by pulse', () => {
-    // REFERENCES §7 [calc]: ΔT/P = Σ Rᵢ(1 − e^(−tp/τᵢ))/(1 − e^(−T/τᵢ)). Foster [(1 K/W, 1 s),
+    // Superposed single-pulse responses of the Foster model (NXP AN11261), a geometric series per cell
+    // [calc]: ΔT/P = Σ Rᵢ(1 − e^(−tp/τᵢ))/(1 − e^(−T/τᵢ)). Foster [(1 K/W, 1 s),
     // (0.5 K/W, 10 ms)], tp = 2 ms, T = 10 ms → 0.344182662 K/W (numpy, float64).
     // After 3000 periods (30 s = 30 τ_max) the transient is e^-30 ≈ 1e-13 of ΣR: tolerance 1e-9.
     const st = [

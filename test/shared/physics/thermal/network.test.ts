@@ -9,7 +9,8 @@ const BARE = { caseToSinkKPerW: 0, sinkToAmbientKPerW: 0, sinkHeatCapacityJPerK:
 
 describe('ThermalNetwork: reference responses', () => {
   it('reproduces the single-RC reference: 63.2121 K after 10 ms on, 23.2544 K after 10 ms off', () => {
-    // REFERENCES §7 [calc]: R = 2 K/W, τ = 10 ms, P = 50 W. Tolerance 5e-5 K (4 decimals given).
+    // One Foster RC, Zth(t) = R(1 − e^(−t/τ)) (NXP AN11261 "Using RC Thermal Models"), R = 2 K/W,
+    // τ = 10 ms, P = 50 W [calc]: 100(1 − e⁻¹) and that times e⁻¹. Tolerance 5e-5 K (4 decimals given).
     const net = ThermalNetwork.fromPath({ foster: [{ rKPerW: 2, tauS: 0.01 }], ...BARE });
     const x = net.createState();
     net.step(x, 50, 0.01);
@@ -125,7 +126,9 @@ describe('ThermalNetwork: exact update', () => {
   });
 
   it('reaches the exact periodic peak of its own Foster equivalent under a pulse train', () => {
-    // REFERENCES §7 [calc] periodic formula applied to the chained network's modal Foster form.
+    // Periodic steady peak of a Foster network, ΔT/P = Σ Rᵢ(1 − e^(−tp/τᵢ))/(1 − e^(−T/τᵢ)) (superposed
+    // single-pulse responses of NXP AN11261's Foster model, summed as a geometric series) [calc],
+    // applied to the chained network's modal Foster form.
     // Pulses 200 µs every 5 ms at 40 W for 2000 s (≈ 13 τ of the sink: transient e^-13 ≈ 2e-6 of
     // the rise), tolerance 1e-5 relative.
     const net = ThermalNetwork.fromPath({ ...PATH, sinkHeatCapacityJPerK: 50 });
