@@ -99,7 +99,7 @@ export function configFromEnv(env: NodeJS.ProcessEnv, cwd: string): ServerConfig
   const host = env.HOST || '127.0.0.1';
   if (!/^[A-Za-z0-9.:-]+$/.test(host)) throw new ConfigError(`HOST=${JSON.stringify(host)} is not an address; give an IP address or a host name (default 127.0.0.1).`);
   const cores = Math.max(1, availableParallelism());
-  const log = env.COILCUE_LOG || 'info';
+  const log = env.COILCUE_LOG || 'warn';
   const levels = ['off', 'fatal', 'error', 'warn', 'info', 'debug'];
   if (!levels.includes(log)) throw new ConfigError(`COILCUE_LOG=${JSON.stringify(log)} is not valid: give one of ${levels.join(', ')}.`);
   let token = env.COILCUE_TOKEN || null;
