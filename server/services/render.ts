@@ -7,7 +7,7 @@ import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { LimitCheck } from '../../shared/plan/evaluate.ts';
 import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
-import { limitLabel } from '../../shared/plan/limit-labels.ts';
+import { limitLabel, limitValueText } from '../../shared/plan/limit-labels.ts';
 import { type LimitingNote, limitingNote } from '../../shared/plan/quality.ts';
 import { preEmphasisAdvice } from '../../shared/plan/report.ts';
 import { type ArcSound, type LevelTriple, arcSoundBlocks } from '../../shared/preview/arc-sound.ts';
@@ -123,8 +123,7 @@ function renderSummary(
 
 /** The one line the command line prints when a render is not safe. */
 function unsafeLine(l: ClosedLoopReport['limits'][number]): string {
-  const v = (x: number) => (l.unit === 'C' ? `${x.toFixed(1)} °C` : l.unit === 'A' ? `${x.toFixed(2)} A` : `${(x * 100).toFixed(3)} %`);
-  return `${limitLabel(l)} breaks on the render: ${v(l.rendered)} against ${v(l.allowed)} allowed${l.atS === null ? '' : ` at ${l.atS.toFixed(2)} s`}`;
+  return `${limitLabel(l)} breaks on the render: ${limitValueText(l.rendered, l.unit, l.limit)} against ${limitValueText(l.allowed, l.unit)} allowed${l.atS === null ? '' : ` at ${l.atS.toFixed(2)} s`}`;
 }
 
 /** What a render is asked for. */
@@ -139,7 +138,7 @@ export interface RenderOptions {
    * overrides it, 0 turns it off.
    */
   preEmphasisDb?: number | 'auto';
-  /** The shelf's corner; default the coil's modulation corner. */
+  /** The shelf's corner; default the advice's corner ('auto') or the coil's modulation corner (a given shelf gain). */
   preEmphasisHz?: number;
   ceilingDbfs: number;
 }
