@@ -15,7 +15,7 @@ import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { type PlanReport, planClipReport } from '../../shared/plan/report.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import type { WelchSpectrum } from '../../shared/dsp/welch.ts';
-import { type ClipInfo, type PlanningAnalysis, loadForPlanning } from './analysis.ts';
+import { type ClipInfo, type PlanningAnalysis, loadForPlanning } from './planning-input.ts';
 import { coilAtResonance, loadCoil, loadDriver } from './profiles.ts';
 
 /** The coil's voltage bound, arc reach and keep-out distance, for the cautions. */

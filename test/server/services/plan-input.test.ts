@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { decodeAudioFile } from '../../../server/audio/decode.ts';
 import { encodeWav } from '../../../server/audio/wav.ts';
-import { loadForPlanning } from '../../../server/services/analysis.ts';
+import { loadForPlanning } from '../../../server/services/planning-input.ts';
 import { analyzeClip } from '../../../shared/analysis/analyze-clip.ts';
 import { modulationSource } from '../../../shared/audio/clip.ts';
 import { toPlanClip } from '../../../shared/plan/plan-clip.ts';
