@@ -7,6 +7,7 @@
  */
 import { LitElement } from 'lit';
 import uPlot from 'uplot';
+import { PREFIXES } from '../../shared/display/format.ts';
 
 /** Okabe & Ito (2008) colour-blind-safe palette, by role; CSS variables hold the per-scheme values. */
 export const SERIES_VARS = ['--c-blue', '--c-orange', '--c-green', '--c-purple', '--c-vermillion', '--c-sky', '--c-yellow'] as const;
@@ -65,16 +66,7 @@ export function logSplits(_u: uPlot, _axis: number, min: number, max: number): n
 /** A number with an SI prefix, 3 significant figures: 1.50 k, 22.0 µ. */
 export function siShort(v: number): string {
   if (v === 0 || !Number.isFinite(v)) return String(v);
-  const prefixes: [number, string][] = [
-    [1e9, 'G'],
-    [1e6, 'M'],
-    [1e3, 'k'],
-    [1, ''],
-    [1e-3, 'm'],
-    [1e-6, 'µ'],
-    [1e-9, 'n'],
-    [1e-12, 'p'],
-  ];
+  const prefixes = PREFIXES.filter(([f]) => f >= 1e-12); // down to pico, as the axes need
   const a = Math.abs(v);
   for (const [f, p] of prefixes) if (a >= f * 0.9995) return `${+(v / f).toPrecision(3)}${p}`;
   return v.toExponential(2);

@@ -3,7 +3,8 @@
  * decimals for levels, and times as m:ss. Pure; used by the web client.
  */
 
-const PREFIXES: [number, string][] = [
+/** SI prefixes from giga to femto, largest first. */
+export const PREFIXES: readonly [number, string][] = [
   [1e9, 'G'],
   [1e6, 'M'],
   [1e3, 'k'],
