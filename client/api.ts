@@ -7,6 +7,7 @@
 import type { AnalysisSummary } from '../shared/analysis/summary.ts';
 import type { CoilReport } from '../shared/physics/coil/analyze.ts';
 import type { SetResult } from '../shared/plan/set.ts';
+import type { Modulation } from '../shared/schemas/api.ts';
 import type { CoilProfile } from '../shared/schemas/coil.ts';
 import type { DeviceRole, DriverProfile } from '../shared/schemas/driver.ts';
 import type { PlanDocument } from '../server/services/plan.ts';
@@ -119,20 +120,8 @@ export interface Evaluated {
   temperatures: { timeS: number[]; devices: DeviceTemperatures[] };
 }
 
-export interface ModulationData {
-  scheme: DriverProfile['scheme'];
-  gainDb: number;
-  supplyVoltageV: number;
-  fromS: number;
-  toS: number;
-  timeS: number[];
-  railMinV: number[] | null;
-  railMaxV: number[] | null;
-  pulseCount: number[] | null;
-  maxOnTimeS: number[] | null;
-  powerMeanW: number[];
-  powerMaxW: number[];
-}
+/** The modulation grid as the server's schema describes it (shared/schemas/api.ts), with the scheme's own type. */
+export type ModulationData = Omit<Modulation, 'scheme'> & { scheme: DriverProfile['scheme'] };
 
 export interface SetItem {
   clipId: string;
