@@ -24,8 +24,8 @@ import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
 export const RENDER_CAUTION =
   'Caution: resonant coils make high voltage and RF that can burn, injure or kill; follow local codes and licensed practice. Hearing: keep preview volume moderate.';
 
-/** Everything `render --json` prints. ±Infinity levels are null. */
-export interface RenderSummary {
+/** What the render and the preview documents both begin with: the file written and the gain behind it. */
+export interface OutputHead {
   clip: string;
   out: string;
   format: WavSampleFormat;
@@ -35,6 +35,10 @@ export interface RenderSummary {
   scheme: string;
   gainDb: number;
   gainFrom: 'advised' | 'given';
+}
+
+/** Everything `render --json` prints. ±Infinity levels are null. */
+export interface RenderSummary extends OutputHead {
   advice: { advisedGainDb: number | null; binding: (Pick<LimitCheck, 'limit' | 'role' | 'value' | 'allowed' | 'unit'> & { label: string }) | null } | null;
   /** The shelf applied (null: none). */
   preEmphasis: PreEmphasis | null;
@@ -247,16 +251,7 @@ const levelsDb = (l: LevelTriple) => ({
 });
 
 /** Everything `preview --json` prints: the modulation preview's display grid and ranges, and the arc sound's levels. */
-export interface PreviewSummary {
-  clip: string;
-  out: string;
-  format: WavSampleFormat;
-  sampleRate: number;
-  durationS: number;
-  channel: ModulationChannel;
-  scheme: string;
-  gainDb: number;
-  gainFrom: 'advised' | 'given';
+export interface PreviewSummary extends OutputHead {
   modulation: Pick<ModulationPreview, 'columns' | 'framesPerColumn' | 'columnS' | 'range'> & {
     supplyVoltageV: number;
     fullPowerW: number;
