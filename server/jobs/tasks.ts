@@ -18,6 +18,7 @@ import { analysisDocument, loadAndAnalyze } from '../services/analysis.ts';
 import { prepareLoadedJob } from '../services/plan.ts';
 import { coilReportFor } from '../services/profiles.ts';
 import { previewJob, renderJob } from '../services/render.ts';
+import { gainSearchOf } from '../../shared/plan/advise.ts';
 import { type PlanSettingsInput, type StoredReductions, planStoredSet, storedPlanDocument } from '../services/stored-plan.ts';
 import { commitFile, removeQuietly } from '../storage/files.ts';
 import { encodeReductions, readReductions } from '../storage/reductions.ts';
@@ -94,8 +95,8 @@ async function run(task: Task): Promise<unknown> {
     }
     case 'plan': {
       const r = await readReductions<StoredReductions>(task.reductionsPath);
-      const { document, settings } = storedPlanDocument(r, task.name, task.coil, task.driver, task.settings, task.gainDb);
-      return { document, settings };
+      const { document, settings, advice } = storedPlanDocument(r, task.name, task.coil, task.driver, task.settings, task.gainDb);
+      return { document, settings, search: 'atAdvised' in advice ? gainSearchOf(advice) : advice };
     }
     case 'render':
     case 'preview': {

@@ -5,6 +5,7 @@
  */
 import { join } from 'node:path';
 import type { AnalysisSettings, Job } from '../../shared/schemas/api.ts';
+import type { GainSearch } from '../../shared/plan/advise.ts';
 import type { CoilProfile } from '../../shared/schemas/coil.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import type { WavSampleFormat } from '../audio/wav.ts';
@@ -36,7 +37,7 @@ export async function makePlan(store: Store, paths: DataPaths, runner: JobRunner
     driver: driver.profile,
     settings: intent.settings,
     gainDb: intent.gainDb,
-  })) as { document: Record<string, unknown> };
+  })) as { document: Record<string, unknown>; search: GainSearch };
   return store.insertPlan({
     clipId: clip.id,
     analysisId,
@@ -47,6 +48,7 @@ export async function makePlan(store: Store, paths: DataPaths, runner: JobRunner
     gainDb: intent.gainDb,
     settings: intent.settings,
     document: out.document,
+    search: out.search,
   });
 }
 

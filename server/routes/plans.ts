@@ -17,7 +17,7 @@ import {
   RenderStartedSchema,
   problems,
 } from '../../shared/schemas/api.ts';
-import type { Advice } from '../../shared/plan/advise.ts';
+import { gainSearchOf } from '../../shared/plan/advise.ts';
 import type { CoilProfile } from '../../shared/schemas/coil.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import { makePlan, planAnalysisSettings, startAnalysis } from '../jobs/work.ts';
@@ -27,12 +27,10 @@ import { evaluateStored, modulationStored } from '../services/stored-plan.ts';
 import type { StoredPlan } from '../storage/store.ts';
 import { publicRender } from './renders.ts';
 
-export const publicPlan = ({ settings: _s, ...p }: StoredPlan) => p;
+export const publicPlan = ({ settings: _s, search: _g, ...p }: StoredPlan) => p;
 
 const routes: FastifyPluginAsyncTypebox = async (app) => {
   const { store } = app;
-  /** The gain search of each recently evaluated plan: a slider's next gains reuse it. */
-  const adviceCache = new Map<string, Advice>();
 
   /** The plan, its analysis's reductions and its clip's name; 404/409 when any is missing. */
   async function loaded(id: string) {
@@ -79,12 +77,15 @@ const routes: FastifyPluginAsyncTypebox = async (app) => {
   app.post(
     '/plans/:id/evaluate',
     { schema: { summary: 'The plan at another gain, with junction temperatures, from the stored reductions', params: IdParams, body: EvaluateRequestSchema, response: { 200: EvaluateSchema, ...problems(400, 404, 409) } } },
-    async (req) => {
+    async (req, reply) => {
       const { plan, reductions, name } = await loaded(req.params.id);
-      const { advice, ...out } = evaluateStored(reductions, name, plan.coil as CoilProfile, plan.driver, plan.settings, req.body.gainDb, req.body.columns ?? 1000, adviceCache.get(plan.id));
-      adviceCache.delete(plan.id);
-      adviceCache.set(plan.id, advice);
-      while (adviceCache.size > 16) adviceCache.delete(adviceCache.keys().next().value as string);
+      const started = performance.now();
+      // The plan's own gain search (it does not depend on the gain asked for); a plan stored
+      // before searches were kept gets its search once, here, and keeps it.
+      const { advice, ...out } = evaluateStored(reductions, name, plan.coil as CoilProfile, plan.driver, plan.settings, req.body.gainDb, req.body.columns ?? 1000, plan.search ?? undefined);
+      if (!plan.search) store.setPlanSearch(plan.id, 'atAdvised' in advice ? gainSearchOf(advice) : advice);
+      // The time this server spent on it (W3C Server Timing), for the benchmark and the page's own figures.
+      reply.header('server-timing', `evaluate;dur=${(performance.now() - started).toFixed(1)}`);
       return out;
     },
   );

@@ -8,7 +8,7 @@ import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { CoilReport } from '../../shared/physics/coil/analyze.ts';
 import type { CoilAtResonance } from '../../shared/physics/driver/types.ts';
-import { type Advice, adviseGain } from '../../shared/plan/advise.ts';
+import { type Advice, type GainSearch, adviseGain } from '../../shared/plan/advise.ts';
 import { type Evaluation, type PlanClip, type PlanSettings, evaluateAtGain, planSettings } from '../../shared/plan/evaluate.ts';
 import type { PulseSource } from '../../shared/plan/plan-clip.ts';
 import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
@@ -43,7 +43,7 @@ export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' &
 /**
  * The plan of one clip: the report at the given gain (or the advised one), and the evaluation and
  * gain search behind it. `opts.advice` reuses a gain search made earlier for the same clip, coil,
- * driver and settings (the server's re-evaluation at another gain).
+ * driver and settings (the server's re-evaluation at another gain reuses the one its plan stored).
  */
 export function planClipDocument(
   planClip: PlanClip,
@@ -51,8 +51,8 @@ export function planClipDocument(
   coil: CoilReport,
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { gainDb?: number; traces?: boolean; advice?: Advice } = {},
-): { document: PlanDocument; evaluation: Evaluation; advice: Advice } {
+  opts: { gainDb?: number; traces?: boolean; advice?: Advice | GainSearch } = {},
+): { document: PlanDocument; evaluation: Evaluation; advice: Advice | GainSearch } {
   const { report, evaluation, advice } = planClipReport(planClip, coil, driver, settings, {
     gainDb: opts.gainDb,
     spectrum: analysis.spectrum.welch,

@@ -6,7 +6,7 @@
  */
 import type { ClipAnalysis } from '../../shared/analysis/analyze-clip.ts';
 import { frameStart } from '../../shared/dsp/frame-stats.ts';
-import type { Advice } from '../../shared/plan/advise.ts';
+import type { Advice, GainSearch } from '../../shared/plan/advise.ts';
 import { type PlanClip, type PlanSettings, evaluateAtGain, planSettings } from '../../shared/plan/evaluate.ts';
 import type { PulseEvents } from '../../shared/plan/pulse-train.ts';
 import { type SetResult, planSet } from '../../shared/plan/set.ts';
@@ -42,7 +42,7 @@ export function storedPlanDocument(
   settings: PlanSettingsInput,
   gainDb: number | null,
   traces = false,
-  advice?: Advice,
+  advice?: Advice | GainSearch,
 ): ReturnType<typeof planClipDocument> & { settings: PlanSettings } {
   const report = coilReportFor(coil, driver);
   const s = planSettings(driver, settings);
@@ -67,8 +67,8 @@ export function maxByColumns(series: ArrayLike<number>, frameS: number, columns:
 
 /**
  * The document at `gainDb` and the junction temperature of every device, on at most `columns`
- * columns (maximum per column). Pass the `advice` an earlier call returned for the same plan to
- * skip the gain search (it does not depend on the gain asked for).
+ * columns (maximum per column). Pass the gain search the plan stored (or the `advice` an earlier
+ * call returned for the same plan) to skip the search (it does not depend on the gain asked for).
  */
 export function evaluateStored(
   r: StoredReductions,
@@ -78,8 +78,8 @@ export function evaluateStored(
   settings: PlanSettingsInput,
   gainDb: number,
   columns: number,
-  advice?: Advice,
-): { document: PlanDocument; advice: Advice; temperatures: { timeS: number[]; devices: { role: string; junctionC: number[]; limitC: number; tjMaxC: number }[] } } {
+  advice?: Advice | GainSearch,
+): { document: PlanDocument; advice: Advice | GainSearch; temperatures: { timeS: number[]; devices: { role: string; junctionC: number[]; limitC: number; tjMaxC: number }[] } } {
   const { document, evaluation, settings: s, advice: a } = storedPlanDocument(r, name, coil, driver, settings, gainDb, true, advice);
   const frameS = r.analysis.frames.frameS;
   let timeS: number[] = [];

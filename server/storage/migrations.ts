@@ -108,6 +108,13 @@ export const MIGRATIONS: readonly Migration[] = [
       );
     `,
   },
+  {
+    version: 3,
+    name: 'the gain search a plan found, kept with it',
+    // JSON of shared/plan/advise.ts GainSearch (−Infinity written as null); null for plans made
+    // before it was kept: the first re-evaluation searches once and stores it.
+    sql: `ALTER TABLE plans ADD COLUMN search TEXT;`,
+  },
 ];
 
 /**

@@ -8,6 +8,7 @@ import Sqlite, { type Database } from 'better-sqlite3';
 import type { Analysis, AnalysisSettings, Clip, Job, JobKindName, JobStateName, Plan, Render, SetRequest, ShowSet } from '../../shared/schemas/api.ts';
 import type { CoilProfile } from '../../shared/schemas/coil.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
+import type { GainSearch } from '../../shared/plan/advise.ts';
 import { migrate } from './migrations.ts';
 
 /** A new identifier: 12 URL-safe characters (72 random bits). */
@@ -53,6 +54,14 @@ export interface StoredRender extends Render {
 
 export interface StoredPlan extends Plan {
   settings: { marginK?: number; allowedShare?: number; ambientC?: number };
+  /** The gain search behind the plan (null for a plan stored before searches were kept). */
+  search: GainSearch | null;
+}
+
+/** A stored search as written: JSON has no −Infinity, the gain of a driver that fails on silence. */
+function searchOf(s: string | null): GainSearch | null {
+  const v = parse<GainSearch & { atAdvisedGainDb: number | null }>(s);
+  return v === null ? null : { ...v, atAdvisedGainDb: v.atAdvisedGainDb ?? -Infinity };
 }
 
 const clipOf = (r: Row): Clip => ({
@@ -100,6 +109,7 @@ const planOf = (r: Row): StoredPlan => ({
   settings: parse(r.settings as string)!,
   document: parse(r.document as string)!,
   createdAt: r.created_at as string,
+  search: searchOf((r.search as string | null) ?? null),
 });
 const renderOf = (r: Row): StoredRender => ({
   id: r.id as string,
@@ -348,9 +358,14 @@ export class Store {
   insertPlan(p: Omit<StoredPlan, 'id' | 'createdAt'>): StoredPlan {
     const id = newId();
     this.db
-      .prepare('INSERT INTO plans (id, clip_id, analysis_id, coil_id, driver_id, coil, driver, gain_db, settings, document, created_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)')
-      .run(id, p.clipId, p.analysisId, p.coilId, p.driverId, json(p.coil), json(p.driver), p.gainDb, json(p.settings), json(p.document), now());
+      .prepare('INSERT INTO plans (id, clip_id, analysis_id, coil_id, driver_id, coil, driver, gain_db, settings, document, search, created_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)')
+      .run(id, p.clipId, p.analysisId, p.coilId, p.driverId, json(p.coil), json(p.driver), p.gainDb, json(p.settings), json(p.document), p.search === null ? null : json(p.search), now());
     return this.getPlan(id)!;
+  }
+
+  /** Keeps the gain search of a plan stored without one (it depends only on what the plan fixed). */
+  setPlanSearch(id: string, search: GainSearch): void {
+    this.db.prepare('UPDATE plans SET search = ? WHERE id = ?').run(json(search), id);
   }
 
   getPlan(id: string): StoredPlan | null {

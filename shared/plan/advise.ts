@@ -26,13 +26,17 @@ export const MAX_GAIN_DB = 40;
 export const MIN_GAIN_DB = -60;
 export const RESOLUTION_DB = 0.1;
 
-export interface Advice {
+/**
+ * What a gain search found, without the evaluation behind it: what a stored plan keeps, so that a
+ * re-evaluation at another gain (which does not change the search) never searches again.
+ */
+export interface GainSearch {
   /** Largest safe gain, dB (rounded down to RESOLUTION_DB); null when no gain is safe. */
   advisedGainDb: number | null;
   /** The limit that stops a higher gain, at advisedGainDb + RESOLUTION_DB (or at the lowest gain tried). */
   binding: LimitCheck | null;
-  /** The evaluation at the advised gain (or at the lowest gain when none is safe). */
-  atAdvised: Evaluation;
+  /** The gain of `atAdvised`, dB (−Infinity: silence, when the driver fails even there). */
+  atAdvisedGainDb: number;
   /** Evaluations run by the search. */
   evaluations: number;
   /** True when the driver fails a limit with no signal at all (silence). */
@@ -40,6 +44,14 @@ export interface Advice {
   /** The gain above which over-modulation alone fails, dB. */
   overModulationBoundDb: number;
 }
+
+export interface Advice extends GainSearch {
+  /** The evaluation at the advised gain (or at the lowest gain when none is safe). */
+  atAdvised: Evaluation;
+}
+
+/** The search without its evaluation (JSON-safe apart from ±Infinity, which storage writes as null). */
+export const gainSearchOf = ({ atAdvised: _, ...search }: Advice): GainSearch => search;
 
 /** Highest gain (dB, to 0.01 dB) whose over-modulated share stays within the allowance. */
 export function overModulationBoundDb(clip: PlanClip, allowedShare: number): number {
@@ -105,10 +117,12 @@ export function adviseGain(
     const silent = evaluateAtGain(clip, coil, driver, -Infinity, settings, { initial: opts.initial, scratch });
     evaluations++;
     const lowest = full(failAbove!);
+    const atAdvised = silent.ok ? lowest : silent;
     return {
       advisedGainDb: null,
       binding: silent.worst ?? lowest.worst,
-      atAdvised: silent.ok ? lowest : silent,
+      atAdvised,
+      atAdvisedGainDb: atAdvised.gainDb,
       evaluations,
       unsafeOnSilence: !silent.ok,
       overModulationBoundDb: bound,
@@ -148,6 +162,7 @@ export function adviseGain(
     advisedGainDb: okProbe.gainDb,
     binding: failAbove ? full(failAbove).worst : null,
     atAdvised: full(okProbe),
+    atAdvisedGainDb: okProbe.gainDb,
     evaluations,
     unsafeOnSilence: false,
     overModulationBoundDb: bound,

@@ -13,9 +13,9 @@ import { ThermalNetwork } from '../physics/thermal/network.ts';
 import { deviceSwitching, tooSlowLabel } from '../physics/driver/transition.ts';
 import type { DeviceRole, DriverDevice, DriverProfile } from '../schemas/driver.ts';
 import { powerToDb } from '../units.ts';
-import { type Advice, adviseGain } from './advise.ts';
+import { type Advice, type GainSearch, adviseGain } from './advise.ts';
 import { dutyBudget, firstCrossing, logSpacedLengthsS, maxWindowMean } from './demand.ts';
-import { type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
+import { type EvalScratch, type Evaluation, type LimitCheck, type PlanClip, type PlanSettings, evaluateAtGain, railAtGain, createScratch } from './evaluate.ts';
 import { dbToAmp } from '../units.ts';
 import { pulseLimitsFor, pulsesAtGain } from './pulse-train.ts';
 import { type DutyCycleFigures, dutyCycleFigures } from './duty-cycle.ts';
@@ -236,12 +236,22 @@ export function preEmphasisAdvice(spec: WelchSpectrum, corner: number | CornerRa
  * for the buck modulator its E[v³] conduction, E[v] switching and constant C_oss parts. Pulse
  * scheme: the on-time fraction (the loss during a pulse is the full-operation loss).
  */
-function demandSeries(clip: PlanClip, coil: CoilAtResonance, driver: DriverProfile, gainDb: number, device: DriverDevice, fullLossW: number, marginK: number): Float64Array {
+function demandSeries(
+  clip: PlanClip,
+  coil: CoilAtResonance,
+  driver: DriverProfile,
+  gainDb: number,
+  device: DriverDevice,
+  fullLossW: number,
+  marginK: number,
+  /** The evaluation's buffers when it ran at this very gain: its clamped rail or its pulse train (not recomputed). */
+  atGain: EvalScratch | null,
+): Float64Array {
   const g = dbToAmp(gainDb);
   const n = clip.frames.count;
   const out = new Float64Array(n);
   if (driver.scheme === 'pulse' && clip.pulseEvents && driver.pulse) {
-    const train = pulsesAtGain(clip.pulseEvents, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
+    const train = atGain?.train ?? pulsesAtGain(clip.pulseEvents, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
     const f = clip.frames.frameS;
     for (let i = 0; i < train.count; i++) {
       // Spread each pulse over the frames it covers, by frame index (stepping by time can stall
@@ -257,7 +267,7 @@ function demandSeries(clip: PlanClip, coil: CoilAtResonance, driver: DriverProfi
     return out;
   }
   if (driver.scheme === 'pulse' || !(fullLossW > 0)) return out;
-  const rail = railAtGain(clip.frames, g, driver.supplyVoltageV, createScratch(clip));
+  const rail = atGain ?? railAtGain(clip.frames, g, driver.supplyVoltageV, createScratch(clip));
   const model = frameLossModel(driver, device.role, coil.resonanceHz);
   const alpha = device.rdsOnTempCoeffPerK ?? 0;
   const hotC = device.tjMaxC - marginK;
@@ -274,16 +284,16 @@ export function planClipReport(
   coil: CoilAtResonance & { modulationCornerHz: number; modulationCornerRangeHz?: CornerRangeHz },
   driver: DriverProfile,
   settings: PlanSettings,
-  opts: { gainDb?: number; spectrum?: WelchSpectrum; initial?: ThermalState[]; traces?: boolean; advice?: Advice } = {},
-): { report: PlanReport; advice: Advice; evaluation: Evaluation } {
+  opts: { gainDb?: number; spectrum?: WelchSpectrum; initial?: ThermalState[]; traces?: boolean; advice?: Advice | GainSearch } = {},
+): { report: PlanReport; advice: Advice | GainSearch; evaluation: Evaluation } {
   // `advice`: a gain search already made for this very clip, coil, driver, settings and initial
   // state (a re-evaluation at another gain reuses it: it does not depend on the gain asked for).
   const advice = opts.advice ?? adviseGain(clip, coil, driver, settings, { initial: opts.initial });
-  const evaluatedGainDb = opts.gainDb ?? advice.advisedGainDb ?? advice.atAdvised.gainDb;
-  const evaluation =
-    opts.gainDb === undefined && !opts.traces && advice.advisedGainDb !== null
-      ? advice.atAdvised
-      : evaluateAtGain(clip, coil, driver, evaluatedGainDb, settings, { initial: opts.initial, traces: opts.traces });
+  const evaluatedGainDb = opts.gainDb ?? advice.advisedGainDb ?? advice.atAdvisedGainDb;
+  const reuse = opts.gainDb === undefined && !opts.traces && advice.advisedGainDb !== null && 'atAdvised' in advice;
+  // A fresh evaluation leaves its clamped rail or pulse train in `scratch`: the demand reads them.
+  const scratch = reuse ? null : createScratch(clip);
+  const evaluation = reuse ? (advice as Advice).atAdvised : evaluateAtGain(clip, coil, driver, evaluatedGainDb, settings, { initial: opts.initial, traces: opts.traces, scratch: scratch! });
   const sim = evaluation.sim;
   const devices: DeviceFigures[] = sim.devices.map((d) => {
     const p = driver.devices.find((x) => x.role === d.role)!;
@@ -313,7 +323,7 @@ export function planClipReport(
     const net = ThermalNetwork.fromPath(d.thermal);
     const allowedRiseK = d.tjMaxC - settings.marginK - settings.ambientC;
     const b = dutyBudget(lengths, allowedRiseK, fullLoss[i], (t) => net.zthKPerW(t));
-    const demand = maxWindowMean(demandSeries(clip, coil, driver, demandGainDb, d, fullLoss[i], settings.marginK), clip.frames.frameS, lengths);
+    const demand = maxWindowMean(demandSeries(clip, coil, driver, demandGainDb, d, fullLoss[i], settings.marginK, scratch), clip.frames.frameS, lengths);
     return {
       role: d.role,
       fullLossW: fullLoss[i],
@@ -355,7 +365,7 @@ export function planClipReport(
     limits: evaluation.limits.map((l) => ({ ...l, label: limitLabel(l) })),
     dutyCycle:
       driver.scheme === 'pulse' && clip.pulseEvents && driver.pulse
-        ? dutyCycleFigures(pulsesAtGain(clip.pulseEvents, dbToAmp(demandGainDb), pulseLimitsFor(driver.pulse, coil.resonanceHz)), clip.durationS, driver.pulse.maxDuty)
+        ? dutyCycleFigures(scratch?.train ?? pulsesAtGain(clip.pulseEvents, dbToAmp(demandGainDb), pulseLimitsFor(driver.pulse, coil.resonanceHz)), clip.durationS, driver.pulse.maxDuty)
         : null,
     limiting: limitingNote(clip.histogram, Number.isFinite(evaluatedGainDb) ? evaluatedGainDb : -Infinity, 0),
     budget,

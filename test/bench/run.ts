@@ -14,6 +14,9 @@
  *
  * For diagnosis it then prints, from one in-process run (analyze-once.ts), the decoding and
  * analysis times and where and when each task ran, and one run on a single thread (analyzeClip).
+ *
+ * Parts: `npm run bench -- [analyze] [plan] [engine] [server] [web]` runs only those (all by
+ * default); the server part alone times the command line's analyze three times as its reference.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -28,6 +31,15 @@ import { runServerBench } from './server-bench.ts';
 import { printWebBench } from './web-bench.ts';
 
 const DURATION_S = 300;
+const PARTS = ['analyze', 'plan', 'engine', 'server', 'web'] as const;
+const asked = process.argv.slice(2);
+for (const a of asked) {
+  if (!(PARTS as readonly string[]).includes(a)) {
+    console.error(`bench: unknown part "${a}"; choose from ${PARTS.join(', ')} (none runs them all)`);
+    process.exit(2);
+  }
+}
+const part = (name: (typeof PARTS)[number]) => asked.length === 0 || asked.includes(name);
 const here = fileURLToPath(new URL('.', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'coilcue-bench-'));
 const wav = join(dir, 'five-minutes.wav');
@@ -71,11 +83,18 @@ try {
     return s;
   };
   command(); // a first run compiles the TypeScript into tsx's cache, as any earlier use of the tool has
-  const runs: { s: number; rssMiB: number; cpuS: number }[] = [];
-  const ffTimes: number[] = [];
-  for (let i = 0; i < 7; i++) {
-    runs.push(command());
-    if (hasFfmpeg) ffTimes.push(ffmpegS());
+  if (!part('analyze')) {
+    if (part('plan')) await runPlanBench(wav);
+    if (part('engine')) await runEngineBench(dir, wav);
+    // The server's reference only: the command line's analyze, median of three.
+    if (part('server')) await runServerBench(wav, median([command().s, command().s, command().s]));
+    if (part('web')) printWebBench();
+  } else {
+    const runs: { s: number; rssMiB: number; cpuS: number }[] = [];
+    const ffTimes: number[] = [];
+    for (let i = 0; i < 7; i++) {
+      runs.push(command());
+      if (hasFfmpeg) ffTimes.push(ffmpegS());
   }
   const totalS = median(runs.map((r) => r.s));
   const rss = Math.max(...runs.map((r) => r.rssMiB));
@@ -114,10 +133,11 @@ try {
       `stages ${Object.entries(seq.stagesMs).map(([k, v]) => `${k} ${v.toFixed(0)} ms`).join(', ')}`,
   );
 
-  await runPlanBench(wav);
-  await runEngineBench(dir, wav);
-  await runServerBench(wav, totalS);
-  printWebBench();
+  if (part('plan')) await runPlanBench(wav);
+  if (part('engine')) await runEngineBench(dir, wav);
+  if (part('server')) await runServerBench(wav, totalS);
+  if (part('web')) printWebBench();
+  }
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }

@@ -3,8 +3,9 @@
  * with the server in its own process on a free loopback port (`node bin/coilcue-server.cjs`):
  * - upload + analysis through the API against the command line's `analyze` on the same file
  *   (target ≤ 1.3×);
- * - re-evaluation of a stored plan at a new gain, per scheme (targets ≤ 150 ms rail, ≤ 300 ms pulse;
- *   measured at the client on loopback, so an upper bound of the server time);
+ * - re-evaluation of a stored plan at a new gain, per scheme (targets ≤ 150 ms rail, ≤ 300 ms pulse
+ *   of server time: the route's own Server-Timing header; the time at the client on loopback,
+ *   which adds the HTTP exchange and this process's JSON parsing, is printed beside it);
  * - while two analyses run: GET /api/health p99 with autocannon (4 connections, 5 s) and the
  *   server's event-loop delay p99 (monitorEventLoopDelay), both target < 50 ms; peak server RSS
  *   (target < 512 MiB);
@@ -124,14 +125,26 @@ export async function runServerBench(wav: string, cliAnalyzeS: number): Promise<
       if (plan.status !== 201) throw new Error(`plan answered ${plan.status}: ${JSON.stringify(plan.body)}`);
       const g = (plan.body.document.advisedGainDb ?? -20) + 3;
       const times: number[] = [];
+      const server: number[] = [];
       for (let i = 0; i < 5; i++) {
         const t = performance.now();
-        const r = await post(base, `/api/plans/${plan.body.id}/evaluate`, { gainDb: Math.min(40, g - i * 0.5), columns: 1000 });
+        const r = await fetch(`${base}/api/plans/${plan.body.id}/evaluate`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json' },
+          body: JSON.stringify({ gainDb: Math.min(40, g - i * 0.5), columns: 1000 }),
+        });
+        await r.json();
         times.push(performance.now() - t);
         if (r.status !== 200) throw new Error(`evaluate answered ${r.status}`);
+        const dur = /dur=([\d.]+)/.exec(r.headers.get('server-timing') ?? '');
+        if (!dur) throw new Error('evaluate answered without a Server-Timing header');
+        server.push(Number(dur[1]));
       }
       const target = d.profile.scheme === 'pulse' ? 300 : 150;
-      console.log(`  re-evaluation at a new gain, ${d.profile.scheme.padEnd(13)} median of 5: ${median(times).toFixed(0)} ms (runs ${times.map((x) => x.toFixed(0)).join(', ')}; target ≤ ${target} ms): ${met(median(times) <= target)}`);
+      console.log(
+        `  re-evaluation at a new gain, ${d.profile.scheme.padEnd(13)} server time, median of 5: ${median(server).toFixed(0)} ms (runs ${server.map((x) => x.toFixed(0)).join(', ')}; target ≤ ${target} ms): ${met(median(server) <= target)}; ` +
+          `at the client ${median(times).toFixed(0)} ms`,
+      );
     }
 
     // Health and profile reads with nothing running (autocannon, 4 connections, 3 s each).

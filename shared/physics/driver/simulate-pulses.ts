@@ -88,12 +88,16 @@ export function simulatePulses(
   const scratch = net.coefficients(0);
   const onCoeff = net.coefficients(0);
   let onCoeffDt = -1;
+  // Between pulses the power is zero: only the decay is needed (a buffer of its own, since
+  // decayCoefficients leaves the mean terms that `solve` reads unset).
+  const idleCoeff = net.coefficients(0);
+  const frameIdle = traces ? net.decayCoefficients(frameS, net.coefficients(0)) : null;
 
   /** Advance from t0 to t1 at power p (split on the frame grid when tracing). */
   const advance = (t0: number, t1: number, p: number, whole: StepCoefficients | null): void => {
     if (t1 <= t0) return;
     if (!traces) {
-      run.advance(p, whole ?? net.coefficients(t1 - t0, scratch), t1);
+      run.advance(p, whole ?? (p === 0 ? net.decayCoefficients(t1 - t0, idleCoeff) : net.coefficients(t1 - t0, scratch)), t1);
       return;
     }
     let t = t0;
@@ -106,14 +110,20 @@ export function simulatePulses(
       }
       const end = k === nFrames - 1 ? t1 : Math.min(t1, frameEnd);
       const dt = end - t;
-      const c = frameCoeff && Math.abs(dt - frameS) <= 1e-12 * frameS ? frameCoeff : net.coefficients(dt, scratch);
+      const full = Math.abs(dt - frameS) <= 1e-12 * frameS;
+      const c = p === 0 ? (full ? frameIdle! : net.decayCoefficients(dt, idleCoeff)) : full ? frameCoeff! : net.coefficients(dt, scratch);
       const tj = run.advance(p, c, end);
-      lossE[k] += p * dt;
-      if (p > 0) charge[k] += ia * dt;
+      if (p > 0) {
+        lossE[k] += p * dt;
+        charge[k] += ia * dt;
+      }
       if (tj > jMax[k]) jMax[k] = tj;
-      // The last piece ending in frame k ends at the frame end (the run is continuous to durationS).
-      caseEnd[k] = run.caseC();
-      sinkEnd[k] = run.sinkC();
+      // Case and sink at the frame's end: the last piece ending in frame k ends there (the run is
+      // continuous to durationS), so only pieces that reach it (within rounding) are read.
+      if (frameEnd - end <= 1e-9 * frameS || k === nFrames - 1) {
+        caseEnd[k] = run.caseC();
+        sinkEnd[k] = run.sinkC();
+      }
       t = end;
     }
   };
@@ -167,13 +177,14 @@ export function simulatePulses(
   let devTraces: DeviceTraces | undefined;
   let currentA: Float32Array | undefined;
   if (traces) {
-    devTraces = {
-      lossW: Float32Array.from(lossE, (e, k) => e / Math.min(frameS, durationS - k * frameS)),
-      junctionC: Float32Array.from(jMax),
-      caseC: Float32Array.from(caseEnd),
-      sinkC: Float32Array.from(sinkEnd),
-    };
-    currentA = Float32Array.from(charge, (q, k) => q / Math.min(frameS, durationS - k * frameS));
+    const lossW = new Float32Array(nFrames);
+    currentA = new Float32Array(nFrames);
+    for (let k = 0; k < nFrames; k++) {
+      const span = Math.min(frameS, durationS - k * frameS);
+      lossW[k] = lossE[k] / span;
+      currentA[k] = charge[k] / span;
+    }
+    devTraces = { lossW, junctionC: new Float32Array(jMax), caseC: new Float32Array(caseEnd), sinkC: new Float32Array(sinkEnd) };
   }
   const count = run.count;
   const inputJ = vs * ia * onTotal;

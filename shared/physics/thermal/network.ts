@@ -272,6 +272,21 @@ export class ThermalNetwork {
     return c;
   }
 
+  /**
+   * Coefficients for an interval of Δt seconds with no power: the decay alone (the same values
+   * {@link coefficients} gives), the gains zero, the mean terms left unset. For the idle stretches
+   * of a hot loop, where only `advance(state, 0, c)` reads them; keep `out` apart from buffers
+   * that {@link solve}-style readers use.
+   */
+  decayCoefficients(dtS: number, out: StepCoefficients): StepCoefficients {
+    out.dtS = dtS;
+    for (let k = 0; k < this.nodeCount; k++) {
+      out.decay[k] = 1 + Math.expm1(-this.ratesPerS[k] * dtS);
+      out.gain[k] = 0;
+    }
+    return out;
+  }
+
   /** Exact update of `state` in place for a power held over the interval of `c`. */
   advance(state: Float64Array, powerW: number, c: StepCoefficients): void {
     for (let k = 0; k < this.nodeCount; k++) state[k] = state[k] * c.decay[k] + c.gain[k] * powerW;

@@ -102,6 +102,14 @@ describe('the API end to end', () => {
     planClip.name = 'tone.wav';
     const cli = planClipDocument(planClip, analysis, coilReportFor(parseCoilProfile(DEMO_COILS['desk-lantern']), DEMO_DRIVER_LINEAR), DEMO_DRIVER_LINEAR, planSettings(DEMO_DRIVER_LINEAR), { gainDb: -3 });
     expect(e.document).toEqual(JSON.parse(JSON.stringify(cli.document, jsonReplacer)));
+    // It reused the gain search the plan stored (the page never sees it), and says how long it took.
+    expect(p.search).toBeUndefined();
+    expect(ev.headers['server-timing']).toMatch(/^evaluate;dur=\d+(\.\d)?$/);
+    // A plan stored before searches were kept searches once, keeps it, and answers the same.
+    app.store.db.prepare('UPDATE plans SET search = NULL WHERE id = ?').run(ids.plan);
+    const again = await app.inject({ method: 'POST', url: `/api/plans/${ids.plan}/evaluate`, payload: { gainDb: -3, columns: 50 } });
+    expect(again.json()).toEqual(e);
+    expect(app.store.getPlan(ids.plan)!.search).toMatchObject({ advisedGainDb: e.document.advisedGainDb, evaluations: e.document.searchEvaluations });
     // The traces' maxima are the document's peaks (the column maximum keeps the peak).
     for (const d of e.temperatures.devices) {
       const doc = e.document.devices.find((x: { role: string }) => x.role === d.role);

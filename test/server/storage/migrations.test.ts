@@ -25,9 +25,13 @@ describe('migrations', () => {
     const db = new Sqlite(file);
     migrate(db, latest - 1);
     db.prepare("INSERT INTO clips (id, name, sha256, size_bytes, format, sample_rate, channels, duration_s, created_at) VALUES ('c1', 'old.wav', ?, 10, 'wav', 44100, 2, 1, '2026-01-01T00:00:00Z')").run('a'.repeat(64));
+    db.exec(`INSERT INTO analyses (id, clip_id, channel, frame_ms, engine_version, state, created_at) VALUES ('a1', 'c1', 'mix', 1, 'x', 'done', '2026-01-01T00:00:00Z');
+      INSERT INTO plans (id, clip_id, analysis_id, coil_id, driver_id, coil, driver, gain_db, settings, document, created_at)
+        VALUES ('p1', 'c1', 'a1', 'k', 'd', '{}', '{}', NULL, '{}', '{}', '2026-01-01T00:00:00Z')`);
     db.close();
     const store = new Store(file);
     expect(store.getClip('c1')?.name).toBe('old.wav');
+    expect(store.getPlan('p1')?.search).toBeNull(); // made before plans kept their gain search
     expect(store.db.pragma('user_version', { simple: true })).toBe(latest);
     expect(store.db.pragma('foreign_keys', { simple: true })).toBe(1);
     expect(String(store.db.pragma('journal_mode', { simple: true }))).toBe('wal');
