@@ -103,6 +103,13 @@ export interface ParallelAnalyzeOptions extends AnalyzeOptions {
    * caller must not read the clip's samples again. Default false.
    */
   donateChannels?: boolean;
+  /**
+   * Called once the analysis is done with the modulation source it read (in shared memory: the
+   * clip's own channel, channel 0 holding the mix when donated, or an array of its own), so a
+   * caller that needs the source afterwards (the server's pulse candidates) need not mix again.
+   * Not called when the analysis falls back to analyzeClip (module comment).
+   */
+  onSource?: (source: Float32Array) => void;
 }
 
 const isChannelTask = (t: AnalysisTask): boolean => (CHANNEL_TASKS as readonly string[]).includes(t);
@@ -265,6 +272,7 @@ async function analyzeShared(
   // whatever the worker took but did not deliver (it died, or its task threw): run it here
   for (const t of tasks) if (outputs[t] === undefined) runHere(t);
   opts.onProgress?.(1, 'done');
+  opts.onSource?.(source);
   const o = outputs as Required<TaskOutputs>;
   const part = channelFigures(s, o.levels, o['true peak'], o.loudness, outputs['source levels'], o.frames);
   return combineAnalysis(clip, s, part, { ...o.spectrum, pitch: o.pitch });

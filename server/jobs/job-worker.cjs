@@ -13,5 +13,8 @@ try {
 }
 require('tsx/cjs/api').register();
 const { runTask } = require('./tasks.ts');
+// The analysis's second thread, loading while this one waits for work (tasks.ts starts the next
+// one after each analysis); unreferenced, it never keeps the thread alive.
+require('../analysis/worker-handle.ts').prestartAnalysisWorker();
 
 module.exports = runTask;

@@ -201,7 +201,14 @@ describe('the server killed mid-work, then started again', () => {
     expect(plan.id).toBeDefined();
     const render = await json(s, 'POST', `/api/plans/${plan.id as string}/renders`, { kind: 'render', gainDb: -20 });
     expect(render.job).toBeDefined();
-    await new Promise((r) => setTimeout(r, 500));
+    // Killed as soon as the render's job is running: on a quiet machine the whole render of the
+    // 40 s clip takes well under a second, so a fixed wait could miss it.
+    const renderJobId = (render.job as { id: string }).id;
+    for (let i = 0; i < 1000; i++) {
+      const j = await json(s, 'GET', `/api/jobs/${renderJobId}`);
+      if (j.state !== 'queued') break;
+      await new Promise((r) => setTimeout(r, 10));
+    }
     await kill(s);
     await afterKill('render', true);
 
