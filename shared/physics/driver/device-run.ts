@@ -162,6 +162,7 @@ export class DeviceRun {
     const amb = this.ambientC;
     const vs = model.supplyV;
     const { rS, r3, oM, oS, oC, taperV } = model;
+    const oN = model.oN ?? 0;
     const w = this.warnC;
     let free = 0;
     for (let k = 0; k < nm; k++) free += mfs[k] * x[k];
@@ -178,7 +179,7 @@ export class DeviceRun {
       let a = rS * s;
       if (r3 !== 0) a += r3 * railThirdMomentBoundV3(m, s, vs);
       const hm = taperV === undefined ? 1 : modulatorSwitchingShare(m, vs, taperV);
-      const b = (oM * m + (m > 0 ? oC : 0)) * hm + oS * s;
+      const b = (oM * m + (m > 0 ? oC : 0)) * hm + oS * s + oN * m;
       // Electrothermal fixed point over the frame (as solveElectrothermal).
       const tFree = amb + free;
       const loop = a * alpha * h;

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { DeviceRun } from '../../../../shared/physics/driver/device-run.ts';
+import { DeviceRun, frameLossAtW } from '../../../../shared/physics/driver/device-run.ts';
 import { solveElectrothermal, steadyJunctionC, steadyLoopGain } from '../../../../shared/physics/driver/electrothermal.ts';
 import { emptyLossParts, railThirdMomentBoundV3 } from '../../../../shared/physics/driver/losses.ts';
 import { DEMO_DRIVER_LINEAR } from '../../../../shared/demo/drivers.ts';
@@ -97,5 +97,32 @@ describe('DeviceRun.runFrames', () => {
     expect(Math.abs(a.aboveWarnS - b.aboveWarnS)).toBeLessThan(1e-9);
     expect(a.aboveWarnS).toBeGreaterThan(0);
     expect(Math.abs(a.energyJ / b.energyJ - 1)).toBeLessThan(1e-12);
+  });
+
+  it("counts the untapered part oN·m (a bipolar modulator's base drive) and the taper, as frameLossAtW does", () => {
+    // Reference: frameLossAtW (the per-frame model written out term by term) at the temperature the
+    // fused loop solved for; the loop's loss must satisfy p = a·(1 + α(Tj_free + h·p − 25)) + b,
+    // which with α = 0 is p = frameLossAtW(…) exactly.
+    const dev = { ...DEMO_DRIVER_LINEAR.devices[0], rdsOnTempCoeffPerK: 0 };
+    const n = 400;
+    const vs = 48;
+    const meanV = new Float64Array(n);
+    const ms = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      meanV[i] = vs * (0.5 + 0.5 * Math.sin(i / 25)); // reaches V_s, where the taper stops switching
+      ms[i] = Math.min(meanV[i] ** 2 * 1.05, vs * meanV[i]);
+    }
+    const model = { supplyV: vs, rS: 0.002, r3: 0, oM: 0.05, oS: 0.001, oC: 0.3, oN: 0.02, taperV: 2 };
+    const run = new DeviceRun('modulator', 1, dev, 25, undefined, undefined);
+    const loss = new Float64Array(n);
+    run.runFrames(model, meanV, ms, 1e-3, loss);
+    let worst = 0;
+    for (let i = 0; i < n; i++) worst = Math.max(worst, Math.abs(loss[i] - frameLossAtW(model, meanV[i], ms[i], 0, 25)));
+    expect(worst).toBeLessThan(1e-12);
+    // Without oN the losses are lower by exactly oN·m per frame.
+    const run0 = new DeviceRun('modulator', 1, dev, 25, undefined, undefined);
+    const loss0 = new Float64Array(n);
+    run0.runFrames({ ...model, oN: 0 }, meanV, ms, 1e-3, loss0);
+    expect(loss[10] - loss0[10]).toBeCloseTo(0.02 * Math.min(meanV[10], vs), 12);
   });
 });
