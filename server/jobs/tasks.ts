@@ -22,7 +22,7 @@ import { previewJob, renderJob } from '../services/render.ts';
 import { gainSearchOf } from '../../shared/plan/advise.ts';
 import { type PlanSettingsInput, type StoredReductions, planStoredSet, storedPlanDocument } from '../services/stored-plan.ts';
 import { commitFile, removeQuietly } from '../storage/files.ts';
-import { encodeReductions, readReductions } from '../storage/reductions.ts';
+import { readReductions, writeReductions } from '../storage/reductions.ts';
 
 export type Task =
   | { kind: 'analysis'; clipPath: string; channel: ModulationChannel; frameS: number; tmpPath: string; finalPath: string; port?: MessagePort }
@@ -86,7 +86,7 @@ async function run(task: Task): Promise<unknown> {
       progress(0.98, 'storing');
       const pulseEvents = zeroCrossingEvents(source, analysis.sampleRate);
       try {
-        await writeFile(task.tmpPath, encodeReductions({ analysis, pulseEvents } satisfies StoredReductions));
+        await writeReductions(task.tmpPath, { analysis, pulseEvents } satisfies StoredReductions);
         await commitFile(task.tmpPath, task.finalPath);
       } catch (e) {
         await removeQuietly(task.tmpPath);

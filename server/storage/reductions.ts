@@ -9,7 +9,7 @@
  * non-finite number is `{ "$n": "NaN" | "Infinity" | "-Infinity" }` (JSON has neither), so the
  * value read back equals the value written, bit for bit.
  */
-import { readFile, writeFile } from 'node:fs/promises';
+import { open, readFile } from 'node:fs/promises';
 
 const MAGIC = 'CCR1';
 type TA = Float64Array | Float32Array | Int32Array | Uint32Array | Uint8Array | Int16Array | Uint16Array | Int8Array;
@@ -19,8 +19,12 @@ type TAName = keyof typeof CTORS;
 const isTA = (v: unknown): v is TA => ArrayBuffer.isView(v) && !(v instanceof DataView);
 const pad8 = (n: number): number => (n + 7) & ~7;
 
-/** Encodes `value` (plain objects, arrays, numbers, strings, booleans, null and typed arrays). */
-export function encodeReductions(value: unknown): Uint8Array {
+/**
+ * The file's bytes as pieces in order: magic, length and header (padded), then each typed array's
+ * own bytes (views, not copies) with the padding after it. Written with one writev, no copy of
+ * the arrays is made.
+ */
+function reductionParts(value: unknown): Uint8Array[] {
   const arrays: TA[] = [];
   const walk = (v: unknown): unknown => {
     if (typeof v === 'number') return Number.isFinite(v) ? v : { $n: String(v) };
@@ -42,12 +46,29 @@ export function encodeReductions(value: unknown): Uint8Array {
     offset = pad8(offset + a.byteLength);
   }
   const header = new TextEncoder().encode(JSON.stringify({ value: json, arrays: table }));
-  const start = pad8(8 + header.length);
-  const out = new Uint8Array(start + offset);
-  out.set(new TextEncoder().encode(MAGIC), 0);
-  new DataView(out.buffer).setUint32(4, header.length, true);
-  out.set(header, 8);
-  arrays.forEach((a, i) => out.set(new Uint8Array(a.buffer, a.byteOffset, a.byteLength), start + table[i].offset));
+  const first = new Uint8Array(pad8(8 + header.length));
+  first.set(new TextEncoder().encode(MAGIC), 0);
+  new DataView(first.buffer).setUint32(4, header.length, true);
+  first.set(header, 8);
+  const parts: Uint8Array[] = [first];
+  const zeros = new Uint8Array(8);
+  for (const a of arrays) {
+    if (a.byteLength > 0) parts.push(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
+    const pad = pad8(a.byteLength) - a.byteLength;
+    if (pad > 0) parts.push(zeros.subarray(0, pad));
+  }
+  return parts;
+}
+
+/** Encodes `value` (plain objects, arrays, numbers, strings, booleans, null and typed arrays). */
+export function encodeReductions(value: unknown): Uint8Array {
+  const parts = reductionParts(value);
+  const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+  let at = 0;
+  for (const p of parts) {
+    out.set(p, at);
+    at += p.length;
+  }
   return out;
 }
 
@@ -77,5 +98,27 @@ export function decodeReductions<T = unknown>(bytes: Uint8Array): T {
   return walk(value) as T;
 }
 
-export const writeReductions = (path: string, value: unknown): Promise<void> => writeFile(path, encodeReductions(value));
+/**
+ * Writes encodeReductions(value)'s bytes to a new file at `path` (it must not exist) straight from
+ * the arrays, without the whole file in memory first. Not flushed: commitFile does that.
+ */
+export async function writeReductions(path: string, value: unknown): Promise<void> {
+  const parts = reductionParts(value);
+  const fh = await open(path, 'wx');
+  try {
+    // writev takes at most IOV_MAX (1024 on Linux) pieces a call and may write fewer bytes than asked.
+    for (let i = 0; i < parts.length; ) {
+      const batch = parts.slice(i, i + 512);
+      i += batch.length;
+      let { bytesWritten } = await fh.writev(batch);
+      for (const p of batch) {
+        let done = Math.min(bytesWritten, p.length);
+        bytesWritten -= done;
+        while (done < p.length) done += (await fh.write(p, done)).bytesWritten;
+      }
+    }
+  } finally {
+    await fh.close();
+  }
+}
 export const readReductions = async <T>(path: string): Promise<T> => decodeReductions<T>(await readFile(path));

@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { pitchLockedEvents, pulsesAtGain, zeroCrossingEvents } from '../../../shared/plan/pulse-train.ts';
 
@@ -23,6 +24,53 @@ describe('zeroCrossingEvents', () => {
     expect(zeroCrossingEvents(new Float32Array(4800), FS).timeS.length).toBe(0);
     const hiss = Float32Array.from({ length: 4800 }, (_, i) => 5e-4 * Math.sin(i * 1.7));
     expect(zeroCrossingEvents(hiss, FS).timeS.length).toBe(0);
+  });
+
+  it('equals a per-sample Schmitt trigger on random signals, edges included', () => {
+    // Reference: the trigger written one sample at a time from its definition (arm below −h, fire
+    // above +h when armed; level = peak |x| from one event's sample up to and with the next's).
+    const reference = (x: Float32Array, h: number) => {
+      const t: number[] = [];
+      const l: number[] = [];
+      let armed = false;
+      let peak = 0;
+      for (let i = 0; i < x.length; i++) {
+        peak = Math.max(peak, Math.abs(x[i]));
+        if (x[i] < -h) armed = true;
+        else if (armed && x[i] > h) {
+          armed = false;
+          if (t.length > 0) l[l.length - 1] = peak;
+          const prev = x[i - 1];
+          t.push((i - 1 + (prev < 0 && x[i] !== prev ? -prev / (x[i] - prev) : 0)) / FS);
+          l.push(0);
+          peak = Math.abs(x[i]);
+        }
+      }
+      if (t.length > 0) l[l.length - 1] = peak;
+      return { t, l };
+    };
+    fc.assert(
+      fc.property(
+        fc.record({ n: fc.integer({ min: 0, max: 3000 }), hz: fc.double({ min: 20, max: 8000, noNaN: true }), amp: fc.double({ min: 0, max: 1, noNaN: true }), noise: fc.double({ min: 0, max: 0.5, noNaN: true }), seed: fc.integer({ min: 1, max: 2 ** 31 - 2 }) }),
+        fc.constantFrom(1e-3, 0.05, 0.3),
+        ({ n, hz, amp, noise, seed }, h) => {
+        // A tone in noise (a Park–Miller generator, so each case is reproducible from its seed).
+        let r = seed;
+        const x = Float32Array.from({ length: n }, (_, i) => {
+          r = (r * 16807) % 2147483647;
+          return amp * Math.sin((2 * Math.PI * hz * i) / FS) + noise * (2 * (r / 2147483647) - 1);
+        });
+        const got = zeroCrossingEvents(x, FS, { hysteresis: h });
+        const want = reference(x, h);
+        expect(Array.from(got.timeS)).toEqual(want.t);
+        expect(Array.from(got.level)).toEqual(want.l.map((v) => Math.fround(v)));
+        },
+      ),
+      { numRuns: 300 },
+    );
+    // More events than the first capacity (1024), so the arrays grow.
+    const many = sine(3000, 0.9, 1);
+    expect(zeroCrossingEvents(many, FS).timeS.length).toBe(reference(many, 1e-3).t.length);
   });
 });
 
