@@ -15,6 +15,7 @@ import { isInputError } from '../../shared/errors.ts';
 import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import type { WavSampleFormat } from '../audio/wav.ts';
 import { prestartAnalysisWorker } from '../analysis/worker-handle.ts';
+import { releaseMemory } from './release-memory.ts';
 import { analysisDocument, loadAndAnalyze } from '../services/analysis.ts';
 import { prepareLoadedJob } from '../services/plan.ts';
 import { coilReportFor } from '../services/profiles.ts';
@@ -146,5 +147,8 @@ export async function runTask(task: Task): Promise<TaskResult> {
     throw e;
   } finally {
     task.port?.close();
+    // Once the result has gone back: a job thread idles after a job, and the clip it held would
+    // stay resident until the next job's allocations made V8 collect it (release-memory.ts).
+    setImmediate(releaseMemory);
   }
 }
