@@ -179,7 +179,11 @@ export async function writeWavAtomic(path: string, bytes: Uint8Array): Promise<v
   }
 }
 
-function writeError(e: unknown, path: string): unknown {
+/**
+ * A file-system error writing `path` as a person reads it: InputError `unwritable` for refusals they
+ * can fix (missing folder, permissions, full disk, a folder of that name), else the error itself.
+ */
+export function writeError(e: unknown, path: string): unknown {
   const code = (e as { code?: string } | null)?.code;
   const why: Record<string, string> = {
     ENOENT: 'its folder does not exist',

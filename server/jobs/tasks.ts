@@ -19,7 +19,8 @@ import { releaseMemory } from './release-memory.ts';
 import { analysisDocument, loadAndAnalyze } from '../services/analysis.ts';
 import { prepareLoadedJob } from '../services/plan.ts';
 import { coilReportFor } from '../services/profiles.ts';
-import { previewJob, renderJob } from '../services/render.ts';
+import { type PreviewSummary, type RenderSummary, previewJob, renderJob } from '../services/render.ts';
+import { StagedFile } from '../render/staged-file.ts';
 import { gainSearchOf } from '../../shared/plan/advise.ts';
 import { type PlanSettingsInput, type StoredReductions, planStoredSet, storedPlanDocument } from '../services/stored-plan.ts';
 import { commitFile, removeQuietly } from '../storage/files.ts';
@@ -104,25 +105,34 @@ async function run(task: Task): Promise<unknown> {
     }
     case 'render':
     case 'preview': {
-      const job = await prepareLoadedJob('/', task.clipPath, coilReportFor(task.coil, task.driver), task.driver, task.channel, (f, s) => progress(0.6 * f, s));
-      job.settings = planSettings(task.driver, task.settings);
-      progress(0.6, task.kind === 'render' ? 'rendering' : 'previewing');
-      const suffix = task.kind === 'render' ? '-coil.wav' : '-arcs.wav';
-      const names = { clip: task.clipName, out: `${task.clipName.replace(/\.[A-Za-z0-9]+$/, '')}${suffix}` };
-      const gainDb = task.gainDb ?? undefined;
-      const out =
-        task.kind === 'render'
-          ? await renderJob(job, { names, gainDb, format: task.format, preEmphasisDb: task.preEmphasisDb, ceilingDbfs: task.ceilingDbfs })
-          : previewJob(job, { names, gainDb, format: task.format });
-      progress(0.95, 'storing');
+      // The preview reads no spectrum; the render's pre-emphasis advice does.
+      const job = await prepareLoadedJob('/', task.clipPath, coilReportFor(task.coil, task.driver), task.driver, task.channel, (f, s) => progress(0.6 * f, s), {
+        spectrum: task.kind === 'render',
+      });
+      let summary: RenderSummary | PreviewSummary;
       try {
-        await writeFile(task.tmpPath, out.bytes);
-        await commitFile(task.tmpPath, task.finalPath);
-      } catch (e) {
-        await removeQuietly(task.tmpPath);
-        throw e;
+        job.settings = planSettings(task.driver, task.settings);
+        progress(0.6, task.kind === 'render' ? 'rendering' : 'previewing');
+        const suffix = task.kind === 'render' ? '-coil.wav' : '-arcs.wav';
+        const names = { clip: task.clipName, out: `${task.clipName.replace(/\.[A-Za-z0-9]+$/, '')}${suffix}` };
+        const gainDb = task.gainDb ?? undefined;
+        // Written under tmp/ as it is made, renamed to its final name once complete (a render that
+        // breaks its plan is kept too, and marked so below).
+        const out = StagedFile.create(task.finalPath, task.tmpPath, { fileSystemErrors: 'as-is' });
+        try {
+          summary =
+            task.kind === 'render'
+              ? renderJob(job, { names, gainDb, format: task.format, preEmphasisDb: task.preEmphasisDb, ceilingDbfs: task.ceilingDbfs }, out).summary
+              : previewJob(job, { names, gainDb, format: task.format }, out).summary;
+          progress(0.95, 'storing');
+          out.commit();
+        } catch (e) {
+          out.discard();
+          throw e;
+        }
+      } finally {
+        job.source.close();
       }
-      const summary = out.summary;
       const safe = 'closedLoop' in summary ? summary.closedLoop.ok && summary.closedLoop.promiseKept : true;
       return { summary, safe };
     }

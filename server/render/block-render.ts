@@ -13,14 +13,18 @@
  * checks it against the package's graph on a long signal.
  *
  * True peak: the limiter's true-peak passes (shared/dsp/limiter.ts) need the whole output's true
- * peak before they know whether to run again at a lower sample ceiling. Each pass therefore streams
- * the source through the chain again and measures the output's true peak as it goes
- * (TruePeakMeter), writing nothing; once the sample ceiling (and any final scaling) is known, one
- * more pass writes the file. Music usually takes two measuring passes.
+ * peak before they know whether to run again at a lower sample ceiling. Each pass therefore reads
+ * the source again (SampleBlocks: from memory, or from the WAV file, shared/preview/sample-blocks.ts)
+ * through the chain and measures the output's true peak as it goes (TruePeakMeter). The first pass
+ * only measures; every later pass writes as it goes (the sink starts over before each), so the
+ * pass whose true peak is within the ceiling is already the file: music usually takes two passes,
+ * the second of which is written. Only when the first pass already meets the ceiling, or the passes
+ * run out and a final scaling is needed, does one more pass write.
  */
 import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S, LimiterStream } from '../../shared/dsp/limiter.ts';
 import { TRUE_PEAK_PHASES, TruePeakMeter } from '../../shared/dsp/true-peak.ts';
 import { createRng } from '../../shared/demo/prng.ts';
+import type { SampleBlocks } from '../../shared/preview/sample-blocks.ts';
 import { dbToAmp } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
 
@@ -276,18 +280,18 @@ const MAX_TRUE_PEAK_PASSES = 6;
 
 /**
  * Streams `source` through the chain (module comment) into `sink` (called with each block of
- * final samples, in order, restarted through `restart` before a pass that replaces the previous
- * one). The passes and their arithmetic are lookAheadLimit's (shared/dsp/limiter.ts), so the samples
- * equal the whole-buffer render's.
+ * final samples, in order; `restart` is called before a pass that replaces what was written). The
+ * passes and their arithmetic are lookAheadLimit's (shared/dsp/limiter.ts), so the samples equal
+ * the whole-buffer render's. Memory: a few blocks.
  */
 export function renderBlocks(
-  source: Float32Array,
+  source: SampleBlocks,
   sampleRate: number,
   s: BlockRenderSettings,
   sink: { write(block: Float32Array): void; restart(): void },
 ): BlockRenderFigures {
   const n = source.length;
-  const B = Math.max(1, Math.floor(s.blockSize ?? RENDER_BLOCK));
+  const B = Math.max(1, Math.min(Math.floor(s.blockSize ?? RENDER_BLOCK), source.maxBlock));
   const graph = new GraphStream(sampleRate, s.gainDb, s.preEmphasis);
   const g = new Float32Array(Math.min(B, Math.max(1, n)));
   const before = new TruePeakMeter();
@@ -296,7 +300,7 @@ export function renderBlocks(
   if (lim === null) {
     for (let a = 0; a < n; a += B) {
       const blk = g.subarray(0, Math.min(B, n - a));
-      graph.process(source.subarray(a, a + blk.length), blk);
+      graph.process(source.read(a, blk.length), blk);
       before.add(blk);
       for (let i = 0; i < blk.length; i++) beforePeak = Math.max(beforePeak, Math.abs(blk[i]));
       sink.write(blk);
@@ -311,11 +315,14 @@ export function renderBlocks(
   const out = new Float32Array(Math.max(g.length, L));
   const c = lim.workingCeiling;
   const meter = new TruePeakMeter();
+  let written = false;
 
   /** One pass at sample ceiling `ceiling`, scaled by `scale`, to the sink when `write`; returns the limiter's counts and the output's levels. */
   const pass = (ceiling: number, scale: number, first: boolean, write: boolean) => {
     graph.reset();
     meter.reset();
+    if (write && written) sink.restart();
+    written ||= write;
     const stream = new LimiterStream(ceiling, L, a);
     let samplePeak = 0;
     const emit = (blk: Float32Array) => {
@@ -330,7 +337,7 @@ export function renderBlocks(
     };
     for (let at = 0; at < n; at += B) {
       const blk = g.subarray(0, Math.min(B, n - at));
-      graph.process(source.subarray(at, at + blk.length), blk);
+      graph.process(source.read(at, blk.length), blk);
       if (first) {
         before.add(blk);
         for (let i = 0; i < blk.length; i++) beforePeak = Math.max(beforePeak, Math.abs(blk[i]));
@@ -341,25 +348,25 @@ export function renderBlocks(
     return { stream, samplePeak, tp: meter.value() };
   };
 
-  // Without the true peak, one pass is the file. With it, the passes only measure until the sample
-  // ceiling (and any final scaling) is known, then one more writes: encoding and the closed loop's
-  // reductions cost more than a pass of the limiter, and most renders need a second pass.
+  // Without the true peak, one pass is the file. With it, the first pass measures and each later
+  // one writes as it measures (module comment).
   let sampleCeiling = c;
   let passes = 1;
   let finalScale = 1;
   let r = pass(sampleCeiling, 1, true, !lim.truePeak);
   if (lim.truePeak) {
-    let lastScale = 1;
     while (r.tp > c && passes < MAX_TRUE_PEAK_PASSES) {
       sampleCeiling *= (c / r.tp) * (1 - 1e-6);
-      r = pass(sampleCeiling, 1, false, false);
+      r = pass(sampleCeiling, 1, false, true);
       passes++;
     }
     if (r.tp > c) {
       finalScale = (c / r.tp) * (1 - 1e-6);
-      lastScale = finalScale;
+      r = pass(sampleCeiling, finalScale, false, true);
+    } else if (passes === 1) {
+      // the first pass met the ceiling but was not written
+      r = pass(sampleCeiling, 1, false, true);
     }
-    r = pass(sampleCeiling, lastScale, false, true);
   }
   const minGain = r.stream.minGain * finalScale;
   return {

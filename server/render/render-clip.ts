@@ -6,9 +6,11 @@
  * pre-emphasis (the Web Audio "highshelf" at a corner with a gain in dB, S = 1, which is
  * R. Bristow-Johnson's *Audio EQ Cookbook* high shelf) → gain (g = 10^(gainDb/20)) → the look-ahead
  * peak limiter of shared/dsp/limiter.ts at the ceiling → the WAV encoder. All of it runs block by
- * block (block-render.ts), so memory does not grow with the clip's length beyond the source itself;
+ * block (block-render.ts) from a source read block by block (SampleBlocks: the WAV file read again
+ * for each pass, server/render/wav-source.ts), so memory does not grow with the clip's length;
  * the shelf and the gain compute what the `web-audio-api` package's OfflineAudioContext graph
- * (renderGraph, kept as the reference) computes.
+ * (render-graph.ts renderGraph, kept as the reference for the tests, outside the render's imports)
+ * computes.
  *
  * Why the limiter is not the graph's DynamicsCompressorNode: in this package it is a dB-domain
  * envelope follower with a one-pole attack (attack ≥ 0 s, no look-ahead) and a ratio of at most
@@ -27,10 +29,10 @@
  * the ceiling minus that margin (times the Annex 2 filter's Σ|h| for the true peak), so the
  * FILE, not just the float render, stays at or below the ceiling.
  */
-import { OfflineAudioContext } from 'web-audio-api';
 import { type AudioClip, type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
 import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S } from '../../shared/dsp/limiter.ts';
 import { InputError } from '../../shared/errors.ts';
+import { type SampleBlocks, arraySamples } from '../../shared/preview/sample-blocks.ts';
 import { ampToDb, dbToAmp } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
 import { ANNEX2_ABS_TAP_SUM, type BlockRenderFigures, type PreEmphasis, WavBlockEncoder, quantisationMargin, renderBlocks } from './block-render.ts';
@@ -115,46 +117,12 @@ function checkOptions(clip: Pick<AudioClip, 'sampleRate'>, o: RenderOptions): vo
   }
 }
 
-/**
- * Runs the Web Audio graph (source → [highshelf] → gain → destination) offline over a mono signal.
- * Exported for tests (the graph alone, without the limiter).
- *
- * @example await renderGraph(x, 48000, 0, null) // x unchanged (gain 1, no filter)
- */
-export async function renderGraph(mono: Float32Array, sampleRate: number, gainDb: number, preEmphasis: PreEmphasis | null): Promise<Float32Array> {
-  const n = mono.length;
-  if (n === 0) return new Float32Array(0);
-  const ctx = new OfflineAudioContext(1, n, sampleRate);
-  const buffer = ctx.createBuffer(1, n, sampleRate);
-  // set() rather than copyToChannel, which refuses samples in shared memory (the analysis keeps the
-  // modulation source in a SharedArrayBuffer for its worker thread)
-  buffer.getChannelData(0).set(mono);
-  const source = ctx.createBufferSource();
-  source.buffer = buffer;
-  const gain = ctx.createGain();
-  gain.gain.value = dbToAmp(gainDb);
-  if (preEmphasis) {
-    const shelf = ctx.createBiquadFilter();
-    shelf.type = 'highshelf';
-    shelf.frequency.value = preEmphasis.cornerHz;
-    shelf.gain.value = preEmphasis.shelfGainDb;
-    source.connect(shelf);
-    shelf.connect(gain);
-  } else {
-    source.connect(gain);
-  }
-  gain.connect(ctx.destination);
-  source.start(0);
-  const rendered = await ctx.startRendering();
-  return rendered.getChannelData(0);
-}
-
 /** A render's levels and limiter report, without its samples (they went to the file). */
 export type RenderedModulationFigures = Omit<RenderedModulation, 'samples'> & { sampleCount: number };
 
 /**
  * Renders the coil-ready modulation signal of `source` (the modulation source `channel` of a clip:
- * mono, linear full scale) block by block (module comment) and encodes it as a mono WAV in
+ * mono, linear full scale; an array, or SampleBlocks read again for each pass) block by block (module comment) and encodes it as a mono WAV in
  * `format` (16-bit with TPDF dither seeded by `seed`, 24-bit, or 32-bit float): `onChunk` receives
  * the file's bytes in order, `onDecoded` the samples as a reader decodes them from the file (for the
  * closed loop), `onRestart` is called when a pass that was written is replaced by the next (the
@@ -165,15 +133,16 @@ export type RenderedModulationFigures = Omit<RenderedModulation, 'samples'> & { 
  * @example const parts: Uint8Array[] = []; renderModulationWav(src, 44100, 'mix', { gainDb: -3, format: 's16' }, { onChunk: (b) => parts.push(b.slice()), onRestart: () => (parts.length = 0) })
  */
 export function renderModulationWav(
-  source: Float32Array,
+  source: Float32Array | SampleBlocks,
   sampleRate: number,
   channel: ModulationChannel,
   opts: RenderOptions & { format: WavSampleFormat; seed?: number; blockSize?: number },
   sink: { onChunk(bytes: Uint8Array): void; onDecoded?(samples: Float32Array): void; onRestart?(): void },
 ): RenderedModulationFigures {
   checkOptions({ sampleRate }, opts);
-  const enc = new WavBlockEncoder(sampleRate, source.length, opts.format, opts.seed ?? 1, sink.onChunk, sink.onDecoded);
-  const r = renderSamples(source, sampleRate, opts, opts.format, {
+  const blocks = source instanceof Float32Array ? arraySamples(source) : source;
+  const enc = new WavBlockEncoder(sampleRate, blocks.length, opts.format, opts.seed ?? 1, sink.onChunk, sink.onDecoded);
+  const r = renderSamples(blocks, sampleRate, opts, opts.format, {
     write: (b) => enc.write(b),
     restart: () => {
       enc.restart();
@@ -186,7 +155,7 @@ export function renderModulationWav(
 
 /** The limiter's settings from the options, and renderBlocks over `source` into `sink`. */
 function renderSamples(
-  source: Float32Array,
+  source: SampleBlocks,
   sampleRate: number,
   opts: RenderOptions & { blockSize?: number },
   format: WavSampleFormat,
@@ -259,7 +228,7 @@ export async function renderModulation(clip: AudioClip, opts: RenderOptions & { 
   const source = modulationSource(clip, channel);
   const samples = new Float32Array(source.length);
   let at = 0;
-  const r = renderSamples(source, clip.sampleRate, opts, opts.format ?? 's16', {
+  const r = renderSamples(arraySamples(source), clip.sampleRate, opts, opts.format ?? 's16', {
     write: (b) => {
       samples.set(b, at);
       at += b.length;

@@ -15,6 +15,7 @@ import { type PlanCautions, planCautions } from '../../shared/plan/cautions.ts';
 import { type PlanReport, planClipReport } from '../../shared/plan/report.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
 import type { WelchSpectrum } from '../../shared/dsp/welch.ts';
+import type { SampleBlocks } from '../../shared/preview/sample-blocks.ts';
 import { type ClipInfo, type PlanningAnalysis, loadForPlanning } from './planning-input.ts';
 import { coilAtResonance, loadCoil, loadDriver } from './profiles.ts';
 
@@ -47,7 +48,7 @@ export const jsonReplacer = (_k: string, v: unknown) => (typeof v === 'number' &
  */
 export function planClipDocument(
   planClip: PlanClip,
-  analysis: { spectrum: { welch: WelchSpectrum } },
+  analysis: { spectrum: { welch: WelchSpectrum | null } },
   coil: CoilReport,
   driver: DriverProfile,
   settings: PlanSettings,
@@ -55,7 +56,7 @@ export function planClipDocument(
 ): { document: PlanDocument; evaluation: Evaluation; advice: Advice | GainSearch } {
   const { report, evaluation, advice } = planClipReport(planClip, coil, driver, settings, {
     gainDb: opts.gainDb,
-    spectrum: analysis.spectrum.welch,
+    spectrum: analysis.spectrum.welch ?? undefined,
     traces: opts.traces ?? false,
     advice: opts.advice,
   });
@@ -86,8 +87,11 @@ export interface PreparedJob {
   /** What planning read of the clip (averaged spectrum; pitch track for pitch-locked pulses). */
   analysis: PlanningAnalysis;
   channel: ModulationChannel;
-  /** The modulation source (mono), linear full scale. */
-  source: Float32Array;
+  /**
+   * The modulation source (mono), linear full scale, read block by block: a WAV file read again for
+   * each pass, or the decoded source of a compressed file. `source.close()` when the job is done.
+   */
+  source: SampleBlocks;
   coilReport: CoilReport;
   coil: CoilAtResonance;
   driver: DriverProfile;
@@ -95,21 +99,28 @@ export interface PreparedJob {
   plan: PlanClip;
 }
 
+/** What a job is prepared for: `spectrum: false` skips Welch's averaged spectrum (the preview reads none; the render's pre-emphasis advice does). */
+export interface PrepareOptions {
+  spectrum?: boolean;
+}
+
 /**
  * Reads the profiles (first, so a bad profile fails before any decoding), then decodes the clip
- * into its modulation source and plan view (loadForPlanning: the decoded channels are not kept). Paths relative to `cwd`. InputErrors from every
- * step pass through.
+ * into its plan view and a reader of its modulation source (loadForPlanning: the decoded channels
+ * are not kept, and a WAV file's source is read again from the file). Paths relative to `cwd`.
+ * InputErrors from every step pass through. Close `job.source` when done.
  */
 export async function prepareJob(
   cwd: string,
   files: { clip: string; coil: string; driver: string },
   channel: ModulationChannel,
   onProgress?: (fraction: number, stage: string) => void,
+  opts: PrepareOptions = {},
 ): Promise<PreparedJob> {
   const driver = await loadDriver(files.driver, cwd);
   // With the driver, the coil report carries the voltage bound and keep-out the cautions name.
   const coilReport = await loadCoil(files.coil, cwd, driver);
-  return prepareLoadedJob(cwd, files.clip, coilReport, driver, channel, onProgress);
+  return prepareLoadedJob(cwd, files.clip, coilReport, driver, channel, onProgress, opts);
 }
 
 /** prepareJob for profiles already read (the server keeps them as rows). */
@@ -120,8 +131,9 @@ export async function prepareLoadedJob(
   driver: DriverProfile,
   channel: ModulationChannel,
   onProgress?: (fraction: number, stage: string) => void,
+  opts: PrepareOptions = {},
 ): Promise<PreparedJob> {
-  const p = await loadForPlanning(resolve(cwd, clipPath), { name: clipPath, pulses: driver.scheme === 'pulse', channel, keepSource: true, onProgress });
+  const p = await loadForPlanning(resolve(cwd, clipPath), { name: clipPath, pulses: driver.scheme === 'pulse', channel, keepSource: true, spectrum: opts.spectrum, onProgress });
   return { clipPath, clip: p.clip, analysis: p.analysis, channel, source: p.source!, coilReport, coil: coilAtResonance(coilReport), driver, settings: planSettings(driver), plan: p.planClip };
 }
 

@@ -1,8 +1,11 @@
 /**
  * Reading a clip for planning only (plan, render, preview, the server's plans): the file is decoded
  * block by block and reduced as it arrives to what the planner reads (frame statistics, histogram,
- * pulse candidates, the averaged spectrum), keeping the modulation source only when asked. Apart
- * from ./analysis.ts so that the analyze command does not load the planner.
+ * pulse candidates, the averaged spectrum), giving the modulation source only when asked: for a
+ * WAV file as a reader of the file (server/render/wav-source.ts, read again for each pass), so
+ * that the source is never whole in memory; for FLAC, Ogg Vorbis and MP3 (decoded whole by the
+ * decoder anyway) as the decoded source kept in memory. Apart from ./analysis.ts so that the
+ * analyze command does not load the planner.
  */
 import { PITCH_HOP_S, PITCH_MAX_HZ } from '../../shared/analysis/tasks.ts';
 import { type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
@@ -13,8 +16,11 @@ import { InputError } from '../../shared/errors.ts';
 import type { PlanClip } from '../../shared/plan/evaluate.ts';
 import { type PulseSource, toPlanClip } from '../../shared/plan/plan-clip.ts';
 import { writeModulationSource } from '../analysis/shared-source.ts';
+import { type SampleBlocks, arraySamples } from '../../shared/preview/sample-blocks.ts';
 import { type DecodedClip, decodeAudioFile } from '../audio/decode.ts';
 import { PlanReducer } from '../render/closed-loop.ts';
+import { RENDER_BLOCK } from '../render/block-render.ts';
+import { openWavSource } from '../render/wav-source.ts';
 
 /** A decoded file's description without its samples. */
 export type ClipInfo = Omit<DecodedClip, 'channels'> & { channelCount: number; sampleCount: number };
@@ -26,7 +32,8 @@ export interface PlanningAnalysis {
   sampleCount: number;
   durationS: number;
   modulationChannel: ModulationChannel;
-  spectrum: { welch: WelchSpectrum; pitch: PitchTrack | null };
+  /** Welch's averaged spectrum (null when not asked for: the preview needs none) and the pitch track (pitch-locked pulses). */
+  spectrum: { welch: WelchSpectrum | null; pitch: PitchTrack | null };
 }
 
 /** A clip reduced to what planning needs, and its modulation source when asked for. */
@@ -34,8 +41,11 @@ export interface PlanningInput {
   clip: ClipInfo;
   analysis: PlanningAnalysis;
   planClip: PlanClip;
-  /** modulationSource(clip, channel) when `keepSource` was asked for (render, preview), else null. */
-  source: Float32Array | null;
+  /**
+   * modulationSource(clip, channel) block by block when `keepSource` was asked for (render,
+   * preview), else null: a WAV file read again (close it when done), or the decoded source.
+   */
+  source: SampleBlocks | null;
 }
 
 /**
@@ -43,9 +53,12 @@ export interface PlanningInput {
  * read: a WAV file's channels are never held whole (decodeAudioFile's `discardSamples`); each block
  * is mixed into the modulation source and reduced at once (PlanReducer: 1 ms frame statistics,
  * magnitude histogram, zero-crossing pulse candidates for the pulse scheme; WelchStream: Welch's
- * averaged spectrum, the analysis's own within rounding). The source is kept whole only with
- * `keepSource` (render and preview need it) or for pitch-locked pulses (the pitch track reads it);
- * otherwise planning holds one block of it and the reductions.
+ * averaged spectrum, the analysis's own within rounding; skipped with `spectrum: false`). With
+ * `keepSource` (render and preview) the source is handed back as SampleBlocks: a reader of the WAV
+ * file (opened before the decoding and checked to be the same file after it), or, for the
+ * compressed formats and clips too short to stream, the source kept whole. It is kept whole too for
+ * pitch-locked pulses (the pitch track reads it); otherwise planning holds one block of it and the
+ * reductions.
  * The planner's figures equal those built from the full analysis (toPlanClip). InputError
  * `bad-channel` for the right channel of a mono file; the decoder's InputErrors pass through.
  *
@@ -60,6 +73,8 @@ export async function loadForPlanning(
     channel?: ModulationChannel;
     pulseSource?: PulseSource;
     keepSource?: boolean;
+    /** Welch's averaged spectrum (default true; render's pre-emphasis advice reads it). */
+    spectrum?: boolean;
     fftSize?: number;
     onProgress?: (fraction: number, stage: string) => void;
   },
@@ -69,52 +84,79 @@ export async function loadForPlanning(
   const progress = o.onProgress ?? (() => {});
   const size = o.fftSize ?? 4096;
   const pitchLocked = o.pulses && pulseSource === 'pitch-locked';
-  let reducer: PlanReducer | null = null;
-  let welch: WelchStream | null = null;
-  /** The whole source (kept when asked for, for the pitch track, or when too short to stream Welch), else one block. */
-  let source = new Float32Array(0);
-  let whole = false;
-  let at = 0;
-  const decoded = await decodeAudioFile(path, {
-    discardSamples: true,
-    onProgress: (f) => progress(0.9 * f, 'decoding'),
-    onStart: (n, channels, fs) => {
-      if (channel === 'right' && channels < 2) {
-        throw new InputError('bad-channel', 'channel "right" asked of a mono file; choose the mix or the left channel', 'channel');
-      }
-      whole = o.keepSource === true || pitchLocked || n < 4 * size;
-      source = new Float32Array(whole ? n : 0);
-      reducer = new PlanReducer(n, fs, o.pulses && pulseSource === 'zero-crossing');
-      welch = whole ? null : new WelchStream(fs, size);
-      at = 0;
-    },
-    onFrames: (chs, from, to) => {
-      const len = to - from;
-      if (!whole && source.length < len) source = new Float32Array(len);
-      // the block lands at `at` in a whole source, at 0 in a block buffer
-      const base = whole ? at : 0;
-      writeModulationSource(chs, channel, source.subarray(base - from), from, to);
-      const block = source.subarray(base, base + len);
-      reducer!.add(block);
-      welch?.add(block);
-      at += len;
-    },
-  });
-  const fs = decoded.sampleRate;
-  const n = at;
-  progress(0.9, 'spectrum');
-  const spectrum = welch !== null ? (welch as WelchStream).result() : welchPsd(source, fs, { size });
-  const frames = reducer!.result(o.name);
-  let pitch: PitchTrack | null = null;
-  let planClip = frames;
-  if (pitchLocked) {
-    progress(0.95, 'pitch');
-    pitch = yinPitchTrack(source, fs, { hopS: PITCH_HOP_S, maxHz: Math.min(PITCH_MAX_HZ, fs / 4) });
-    planClip = toPlanClip(o.name, { durationS: frames.durationS, sampleRate: fs, frames: frames.frames, histogram: frames.histogram, spectrum: { pitch } }, source, { scheme: 'pulse' }, 'pitch-locked');
+  const wantSpectrum = o.spectrum ?? true;
+  // A WAV file is read again for each pass of the render and the preview instead of being kept.
+  const file = o.keepSource ? openWavSource(path, channel, RENDER_BLOCK) : null;
+  try {
+    return await load();
+  } catch (e) {
+    file?.close();
+    throw e;
   }
-  const welchSpectrum = spectrum;
-  progress(1, 'done');
-  const { channels, ...rest } = decoded;
-  const analysis: PlanningAnalysis = { sampleRate: fs, channels: channels.length, sampleCount: n, durationS: n / fs, modulationChannel: channel, spectrum: { welch: welchSpectrum, pitch } };
-  return { clip: { ...rest, channelCount: channels.length, sampleCount: n }, analysis, planClip, source: o.keepSource ? source : null };
+
+  /** The decoding and the reductions (the body of loadForPlanning, with `file` closed by the caller on error). */
+  async function load(): Promise<PlanningInput> {
+    let reducer: PlanReducer | null = null;
+    let welch: WelchStream | null = null;
+    /** The whole source (kept when asked for, for the pitch track, or when too short to stream Welch), else one block. */
+    let source = new Float32Array(0);
+    let whole = false;
+    let at = 0;
+    const decoded = await decodeAudioFile(path, {
+      discardSamples: true,
+      onProgress: (f) => progress(0.9 * f, 'decoding'),
+      onStart: (n, channels, fs) => {
+        if (channel === 'right' && channels < 2) {
+          throw new InputError('bad-channel', 'channel "right" asked of a mono file; choose the mix or the left channel', 'channel');
+        }
+        whole = (o.keepSource === true && file === null) || pitchLocked || (wantSpectrum && n < 4 * size);
+        source = new Float32Array(whole ? n : 0);
+        reducer = new PlanReducer(n, fs, o.pulses && pulseSource === 'zero-crossing');
+        welch = whole || !wantSpectrum ? null : new WelchStream(fs, size);
+        at = 0;
+      },
+      onFrames: (chs, from, to) => {
+        const len = to - from;
+        if (!whole && source.length < len) source = new Float32Array(len);
+        // the block lands at `at` in a whole source, at 0 in a block buffer
+        const base = whole ? at : 0;
+        writeModulationSource(chs, channel, source.subarray(base - from), from, to);
+        const block = source.subarray(base, base + len);
+        reducer!.add(block);
+        welch?.add(block);
+        at += len;
+      },
+    });
+    const fs = decoded.sampleRate;
+    const n = at;
+    progress(0.9, 'spectrum');
+    const spectrum = !wantSpectrum ? null : welch !== null ? (welch as WelchStream).result() : welchPsd(source, fs, { size });
+    const frames = reducer!.result(o.name);
+    let pitch: PitchTrack | null = null;
+    let planClip = frames;
+    if (pitchLocked) {
+      progress(0.95, 'pitch');
+      pitch = yinPitchTrack(source, fs, { hopS: PITCH_HOP_S, maxHz: Math.min(PITCH_MAX_HZ, fs / 4) });
+      planClip = toPlanClip(o.name, { durationS: frames.durationS, sampleRate: fs, frames: frames.frames, histogram: frames.histogram, spectrum: { pitch } }, source, { scheme: 'pulse' }, 'pitch-locked');
+    }
+    const welchSpectrum = spectrum;
+    progress(1, 'done');
+    const { channels, ...rest } = decoded;
+    const analysis: PlanningAnalysis = { sampleRate: fs, channels: channels.length, sampleCount: n, durationS: n / fs, modulationChannel: channel, spectrum: { welch: welchSpectrum, pitch } };
+    let kept: SampleBlocks | null = null;
+    if (o.keepSource) {
+      if (file !== null && !whole) {
+        // the file read again must be the one just decoded
+        file.reader.checkUnchanged();
+        if (file.length !== n || file.reader.channelCount !== channels.length || file.reader.sampleRate !== fs) {
+          throw new InputError('changed', `${path} changed while it was being read; leave the file alone while coilcue works and try again`);
+        }
+        kept = file;
+      } else {
+        file?.close();
+        kept = arraySamples(source);
+      }
+    }
+    return { clip: { ...rest, channelCount: channels.length, sampleCount: n }, analysis, planClip, source: kept };
+  }
 }

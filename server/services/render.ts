@@ -1,7 +1,11 @@
 /**
  * The coil-ready render and the arc-sound preview of a prepared job: what `coilcue render` and
- * `coilcue preview` do and what the server's render jobs do, built once. Each returns the WAV bytes
- * and the JSON document the command prints with --json; writing the file is the caller's.
+ * `coilcue preview` do and what the server's render jobs do, built once. Each writes the WAV file's
+ * bytes as they are made into a ByteSink (a StagedFile: server/render/staged-file.ts, which the
+ * caller commits under the final name or discards once it has the verdict) and returns the JSON
+ * document the command prints with --json. Nothing the length of the clip is held in memory: the
+ * source is read block by block (job.source), the bytes go to the sink, and only the 1 ms plan
+ * reductions of the render (the closed loop) grow with the clip.
  */
 import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { InputError } from '../../shared/errors.ts';
@@ -14,8 +18,10 @@ import { type ArcSound, type LevelTriple, arcSoundBlocks } from '../../shared/pr
 import { type ModulationGrid, modulationGrid } from '../../shared/preview/grid.ts';
 import { DEFAULT_MAX_COLUMNS, type ModulationPreview, modulationPreview } from '../../shared/preview/modulation.ts';
 import { ampToDb, finiteOrNull } from '../../shared/units.ts';
-import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
+import type { SampleBlocks } from '../../shared/preview/sample-blocks.ts';
+import type { WavSampleFormat } from '../audio/wav.ts';
 import { GraphStream, RENDER_BLOCK, WavBlockEncoder } from '../render/block-render.ts';
+import type { ByteSink } from '../render/staged-file.ts';
 import { type ClosedLoopReport, PlanReducer, closedLoopCheck } from '../render/closed-loop.ts';
 import { type PreEmphasis, type RenderedModulation, type RenderedModulationFigures, quantisationMargin, renderModulationWav } from '../render/render-clip.ts';
 import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
@@ -149,12 +155,14 @@ export interface RenderOptions {
 
 /**
  * The coil-ready clip: gain (given or advised for the signal that reaches the coil), optional
- * pre-emphasis, the look-ahead limiter, encoded block by block; the samples the bytes hold (as a
- * reader decodes them) are planned again at 0 dB (the closed loop). InputError when the pre-emphasis corner is not below half the sample rate or
- * no gain is safe.
+ * pre-emphasis, the look-ahead limiter, encoded block by block into `out`; the samples the bytes
+ * hold (as a reader decodes them) are planned again at 0 dB (the closed loop). The summary's `safe`
+ * is the verdict on which the caller keeps or drops the file. InputError when the pre-emphasis
+ * corner is not below half the sample rate or no gain is safe.
  */
-export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ bytes: Uint8Array; summary: RenderSummary }> {
+export function renderJob(job: PreparedJob, o: RenderOptions, out: ByteSink): { summary: RenderSummary } {
   const fs = job.clip.sampleRate;
+  const n = job.source.length;
   let preEmphasis: PreEmphasis | null = null;
   let plan = job.plan;
   const emphasis = chooseEmphasis(job, o.preEmphasisDb ?? 'auto');
@@ -169,42 +177,60 @@ export async function renderJob(job: PreparedJob, o: RenderOptions): Promise<{ b
     plan = emphasisedPlan(job.source, fs, preEmphasis, job.clipPath, job.driver.scheme === 'pulse');
   }
   const choice = chooseGain(plan, job, o.gainDb);
-  // Block by block into the file's bytes, and (closed loop) the samples the file holds as a reader
-  // decodes them into the planner's reductions, so nothing the length of the clip is kept but the bytes.
-  const reducer = new PlanReducer(job.source.length, fs, job.driver.scheme === 'pulse');
-  let bytes = new Uint8Array(0);
-  let at = 0;
+  // Block by block into the file, and (closed loop) the samples the file holds as a reader decodes
+  // them into the planner's reductions. The header goes out last (patched over zeros), so a file cut
+  // short never reads as a whole WAV.
+  const reducer = new PlanReducer(n, fs, job.driver.scheme === 'pulse');
+  const file = headerLastSink(out);
   const rendered = renderModulationWav(
     job.source,
     fs,
     job.channel,
     { gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format },
     {
-      onChunk: (b) => {
-        if (at + b.length > bytes.length) {
-          const grown = new Uint8Array(Math.max(at + b.length, wavBytes(job.source.length, o.format)));
-          grown.set(bytes.subarray(0, at));
-          bytes = grown;
-        }
-        bytes.set(b, at);
-        at += b.length;
-      },
+      onChunk: (b) => file.write(b),
       onDecoded: (x) => reducer.add(x),
       onRestart: () => {
-        at = 0;
+        file.rewind();
         reducer.restart();
       },
     },
   );
+  file.finish();
   const loop = closedLoopCheck(reducer.result(o.names.out), o.names.out, job.coil, job.driver, job.settings, choice.promised);
-  bytes = bytes.subarray(0, at);
   const note =
     preEmphasis === null
       ? emphasis.note
       : `${emphasis.note}: a first-order high shelf of ${preEmphasis.shelfGainDb >= 0 ? '+' : ''}${preEmphasis.shelfGainDb.toFixed(1)} dB from ${preEmphasis.cornerHz.toFixed(0)} Hz`;
-  return { bytes, summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
+  return { summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
 }
 
+/**
+ * A WavBlockEncoder's chunks into `out` with the header (its first chunk) written as zeros and
+ * patched in by `finish`: until then the file is no valid WAV.
+ */
+function headerLastSink(out: ByteSink) {
+  let header: Uint8Array | null = null;
+  let written = 0;
+  return {
+    write(b: Uint8Array) {
+      if (written === 0) {
+        header = b.slice();
+        out.write(new Uint8Array(b.length));
+      } else out.write(b);
+      written += b.length;
+    },
+    rewind() {
+      out.rewind();
+      written = 0;
+      header = null;
+    },
+    finish() {
+      if (header === null) throw new RangeError('headerLastSink.finish: nothing was written');
+      out.patch(0, header);
+    },
+  };
+}
 
 /**
  * The shelf a render applies: the plan's advice for 'auto' (the one that holds across the
@@ -216,7 +242,8 @@ function chooseEmphasis(job: PreparedJob, asked: number | 'auto'): { shelfDb: nu
   if (asked !== 'auto') {
     return asked === 0 ? { shelfDb: 0, cornerHz, from: 'off', note: 'no pre-emphasis (turned off with 0 dB)' } : { shelfDb: asked, cornerHz, from: 'given', note: 'pre-emphasis as given' };
   }
-  const advice = preEmphasisAdvice(job.analysis.spectrum.welch, job.coilReport.modulationCornerRangeHz);
+  const welch = job.analysis.spectrum.welch;
+  const advice = welch === null ? null : preEmphasisAdvice(welch, job.coilReport.modulationCornerRangeHz);
   if (advice === null || !advice.advised || advice.shelfGainDb === 0) {
     const why = advice === null ? 'the clip has no spectrum to judge by' : `the coil's envelope corner costs the clip only ${advice.envelopeLossDb.toFixed(1)} dB across its range`;
     return { shelfDb: 0, cornerHz, from: 'off', note: `no pre-emphasis: none advised (${why})` };
@@ -224,21 +251,14 @@ function chooseEmphasis(job: PreparedJob, asked: number | 'auto'): { shelfDb: nu
   return { shelfDb: advice.shelfGainDb, cornerHz: advice.cornerHz, from: 'advised', note: `pre-emphasis as the plan advises (${advice.basis})` };
 }
 
-/** Bytes of a mono WAV of `frames` frames in `format` (header as encodeWav writes it). */
-function wavBytes(frames: number, format: WavSampleFormat): number {
-  const header = encodeWav({ sampleRate: 8000, channels: [new Float32Array(0)] }, { format }).length;
-  const data = frames * (format === 's16' ? 2 : format === 's24' ? 3 : 4);
-  return header + data + (data & 1);
-}
-
 /** The plan of `source` through the pre-emphasis shelf at 0 dB, without keeping the emphasised samples. */
-function emphasisedPlan(source: Float32Array, fs: number, preEmphasis: PreEmphasis, name: string, pulses: boolean) {
+function emphasisedPlan(source: SampleBlocks, fs: number, preEmphasis: PreEmphasis, name: string, pulses: boolean) {
   const graph = new GraphStream(fs, 0, preEmphasis);
   const reducer = new PlanReducer(source.length, fs, pulses);
-  const block = new Float32Array(Math.min(RENDER_BLOCK, Math.max(1, source.length)));
+  const block = new Float32Array(Math.min(RENDER_BLOCK, source.maxBlock, Math.max(1, source.length)));
   for (let a = 0; a < source.length; a += block.length) {
     const b = block.subarray(0, Math.min(block.length, source.length - a));
-    graph.process(source.subarray(a, a + b.length), b);
+    graph.process(source.read(a, b.length), b);
     reducer.add(b);
   }
   return reducer.result(name);
@@ -280,17 +300,13 @@ export interface PreviewOptions {
   columns?: number;
 }
 
-/** The arc-sound WAV and the modulation preview of a prepared job at the given (or advised) gain. */
-export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8Array; summary: PreviewSummary; modulation: ModulationPreview } {
+/** The arc-sound WAV (into `out`, block by block) and the modulation preview of a prepared job at the given (or advised) gain. */
+export function previewJob(job: PreparedJob, o: PreviewOptions, out: ByteSink): { summary: PreviewSummary; modulation: ModulationPreview } {
   const choice = chooseGain(job.plan, job, o.gainDb);
   const mod = modulationPreview(job.plan, job.driver, choice.gainDb, { maxColumns: o.columns ?? DEFAULT_MAX_COLUMNS, resonanceHz: job.coil.resonanceHz });
-  // Block by block from the source into the file's bytes (the preview's samples are never whole).
-  const bytes = new Uint8Array(wavBytes(job.source.length, o.format));
-  let at = 0;
-  const enc = new WavBlockEncoder(job.clip.sampleRate, job.source.length, o.format, 1, (b) => {
-    bytes.set(b, at);
-    at += b.length;
-  });
+  // Block by block from the source into the file (the preview's samples are never whole).
+  const file = headerLastSink(out);
+  const enc = new WavBlockEncoder(job.clip.sampleRate, job.source.length, o.format, 1, (b) => file.write(b));
   const arc = arcSoundBlocks(
     job.source,
     job.clip.sampleRate,
@@ -301,6 +317,7 @@ export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8A
     (b) => enc.write(b),
   );
   enc.finish();
+  file.finish();
   const summary: PreviewSummary = {
     clip: o.names.clip,
     out: o.names.out,
@@ -331,5 +348,5 @@ export function previewJob(job: PreparedJob, o: PreviewOptions): { bytes: Uint8A
     },
     caution: RENDER_CAUTION,
   };
-  return { bytes, summary, modulation: mod };
+  return { summary, modulation: mod };
 }

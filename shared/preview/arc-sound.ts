@@ -34,6 +34,7 @@ import { TRUE_PEAK_PHASES, TruePeakMeter, channelTruePeakLinear, samplePeakLinea
 import type { CoilAtResonance } from '../physics/driver/types.ts';
 import { type PulseEvents, pulseLimitsFor, pulsesAtGain, zeroCrossingEvents } from '../plan/pulse-train.ts';
 import type { DriverProfile } from '../schemas/driver.ts';
+import { type SampleBlocks, arraySamples } from './sample-blocks.ts';
 import { dbToAmp } from '../units.ts';
 
 /** Coefficients of the matched-z one-pole low-pass: y[n] = b0·x[n] + α·y[n−1], b0 = 1 − α. */
@@ -124,21 +125,22 @@ const SILENCE_FLOOR = 1e-9;
 const ARC_BLOCK = 65536;
 
 /**
- * The arc-sound preview (module comment) of `source` (the modulation source, linear full scale) on
- * `driver` and `coil` at `gainDb`, made block by block: one pass for the mean of the modelled power
- * and the source's levels, one for the preview's levels before scaling, one that hands the scaled
- * blocks to `sink` in order (the array is reused: copy what you keep). The one-pole's state and the
- * true-peak meter's history carry across blocks, so the samples equal those of one pass over the
- * whole signal; memory is a few blocks besides the source. `pulseEvents` (pulse scheme) default to
- * the zero crossings of the source. `peakMargin` (linear, default 0) is kept below the source's
- * sample peak (and ANNEX2 Σ|h| ≈ 2.02 times it below its true peak) for a later quantisation that
- * moves samples by up to that much (16-bit dither: 1.5 LSB). RangeError for an empty source, a NaN
- * gain, or bad coil figures.
+ * The arc-sound preview (module comment) of `source` (the modulation source, linear full scale: an
+ * array, or SampleBlocks read again for each pass, shared/preview/sample-blocks.ts) on `driver` and
+ * `coil` at `gainDb`, made block by block: one pass for the mean of the modelled power and the
+ * source's levels, one for the preview's levels before scaling, one that hands the scaled blocks to
+ * `sink` in order (the array is reused: copy what you keep). The one-pole's state and the true-peak
+ * meter's history carry across blocks, so the samples equal those of one pass over the whole
+ * signal; memory is a few blocks. `pulseEvents` (pulse scheme) default to the zero crossings of an
+ * array source (SampleBlocks need them given). `peakMargin` (linear, default 0) is kept below the
+ * source's sample peak (and ANNEX2 Σ|h| ≈ 2.02 times it below its true peak) for a later
+ * quantisation that moves samples by up to that much (16-bit dither: 1.5 LSB). RangeError for an
+ * empty source, a NaN gain, bad coil figures, or pulse-scheme SampleBlocks without pulse events.
  *
  * @example arcSoundBlocks(source, 44100, DEMO_DRIVER_LINEAR, coil, -3, {}, (b) => encoder.write(b)).limitedBy
  */
 export function arcSoundBlocks(
-  source: Float32Array,
+  source: Float32Array | SampleBlocks,
   sampleRate: number,
   driver: DriverProfile,
   coil: CoilAtResonance,
@@ -146,14 +148,15 @@ export function arcSoundBlocks(
   opts: { pulseEvents?: PulseEvents; peakMargin?: number; blockSize?: number },
   sink: (block: Float32Array) => void,
 ): Omit<ArcSound, 'samples'> & { sampleCount: number } {
-  const n = source.length;
+  const blocks = source instanceof Float32Array ? arraySamples(source) : source;
+  const n = blocks.length;
   if (n === 0) throw new RangeError('arcSound: source has no samples');
   if (Number.isNaN(gainDb) || gainDb === Infinity) throw new RangeError(`arcSound: gainDb must be finite or −Infinity, got ${gainDb}`);
   if (!(coil.resonanceHz > 0 && coil.qualityFactor > 0)) {
     throw new RangeError(`arcSound: coil needs resonanceHz > 0 and qualityFactor > 0, got ${coil.resonanceHz}, ${coil.qualityFactor}`);
   }
   const g = dbToAmp(gainDb);
-  const B = Math.max(1, Math.floor(opts.blockSize ?? ARC_BLOCK));
+  const B = Math.max(1, Math.min(Math.floor(opts.blockSize ?? ARC_BLOCK), blocks.maxBlock));
   const work = new Float64Array(Math.min(B, n));
   const raw = new Float32Array(work.length);
   let cornerHz: number | null = null;
@@ -166,19 +169,25 @@ export function arcSoundBlocks(
     lp = onePoleLowpass(Math.min(cornerHz, sampleRate / 2), sampleRate);
   } else {
     if (!driver.pulse) throw new RangeError('arcSound: the pulse scheme needs driver.pulse limits');
-    const events = opts.pulseEvents ?? zeroCrossingEvents(source, sampleRate);
+    let events = opts.pulseEvents;
+    if (events === undefined) {
+      if (!(source instanceof Float32Array)) throw new RangeError('arcSound: the pulse scheme read block by block needs opts.pulseEvents');
+      events = zeroCrossingEvents(source, sampleRate);
+    }
     // Pulses shorter than the minimum on-time are dropped, as the planner drops them.
     train = pulsesAtGain(events, g, pulseLimitsFor(driver.pulse, coil.resonanceHz));
     pulseCount = train.count;
   }
 
-  // The model's output before the mean is removed, for samples b0…b0+len−1, into work[0…len−1].
+  // The model's output before the mean is removed, for samples b0…b0+len−1, into work[0…len−1];
+  // `x` is the source's block (rail schemes read it; the pulse train does not).
   let firstPulse = 0;
-  const model = (b0: number, len: number) => {
+  const model = (b0: number, len: number, x: Float32Array | null) => {
     const b1 = b0 + len;
     if (rail) {
+      const s = x ?? blocks.read(b0, len);
       for (let i = 0; i < len; i++) {
-        let u = 1 + g * source[b0 + i];
+        let u = 1 + g * s[i];
         u = u < 0 ? 0 : u > 2 ? 1 : u / 2;
         work[i] = u * u;
       }
@@ -200,36 +209,8 @@ export function arcSoundBlocks(
     }
   };
 
-  // Pass 1: the mean of the modelled power (or pulse coverage), summed in sample order.
-  let sum = 0;
-  for (let b0 = 0; b0 < n; b0 += B) {
-    const len = Math.min(B, n - b0);
-    model(b0, len);
-    for (let i = 0; i < len; i++) sum += work[i];
-  }
-  const mean = sum / n;
-
-  /** Runs the model with the mean removed (and the one-pole for the rail schemes) over the clip, block by block into raw. */
-  const each = (use: (raw: Float32Array) => void) => {
-    firstPulse = 0;
-    let y = 0;
-    for (let b0 = 0; b0 < n; b0 += B) {
-      const len = Math.min(B, n - b0);
-      model(b0, len);
-      const r = raw.subarray(0, len);
-      if (lp) {
-        const { alpha, b0: c0 } = lp;
-        for (let i = 0; i < len; i++) {
-          y = c0 * (work[i] - mean) + alpha * y;
-          r[i] = y;
-        }
-      } else {
-        for (let i = 0; i < len; i++) r[i] = work[i] - mean;
-      }
-      use(r);
-    }
-  };
   const meter = new TruePeakMeter();
+  /** Levels of the blocks `make` hands to its `take`, in order. */
   const levelsOf = (make: (take: (x: Float32Array) => void) => void): LevelTriple => {
     meter.reset();
     let peak = 0;
@@ -245,7 +226,41 @@ export function arcSoundBlocks(
     return { samplePeak: peak, truePeak: meter.value(), rms: Math.sqrt(s2 / n) };
   };
 
-  const src = levelTriple(source);
+  // Pass 1: the source's levels (levelTriple's, block by block) and the mean of the modelled power
+  // (or pulse coverage), summed in sample order.
+  let sum = 0;
+  const src = levelsOf((take) => {
+    for (let b0 = 0; b0 < n; b0 += B) {
+      const len = Math.min(B, n - b0);
+      const x = blocks.read(b0, len);
+      take(x);
+      model(b0, len, x);
+      for (let i = 0; i < len; i++) sum += work[i];
+    }
+  });
+  const mean = sum / n;
+
+  /** Runs the model with the mean removed (and the one-pole for the rail schemes) over the clip, block by block into raw. */
+  const each = (use: (raw: Float32Array) => void) => {
+    firstPulse = 0;
+    let y = 0;
+    for (let b0 = 0; b0 < n; b0 += B) {
+      const len = Math.min(B, n - b0);
+      model(b0, len, null);
+      const r = raw.subarray(0, len);
+      if (lp) {
+        const { alpha, b0: c0 } = lp;
+        for (let i = 0; i < len; i++) {
+          y = c0 * (work[i] - mean) + alpha * y;
+          r[i] = y;
+        }
+      } else {
+        for (let i = 0; i < len; i++) r[i] = work[i] - mean;
+      }
+      use(r);
+    }
+  };
+
   // Pass 2: the preview's levels before scaling.
   const pre = levelsOf((take) => each(take));
   const base = { sampleRate, sampleCount: n, scheme: driver.scheme, gainDb, cornerHz, source: src, pulseCount };

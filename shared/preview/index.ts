@@ -2,3 +2,4 @@
 export * from './modulation.ts';
 export * from './arc-sound.ts';
 export * from './grid.ts';
+export * from './sample-blocks.ts';

@@ -20,6 +20,7 @@ import { analysisDocument, analyzeFile } from '../../server/services/analysis.ts
 import { planClipDocument, prepareLoadedJob, type PreparedJob } from '../../server/services/plan.ts';
 import { coilAtResonance, coilReportFor } from '../../server/services/profiles.ts';
 import { previewJob, renderJob } from '../../server/services/render.ts';
+import { MemorySink } from '../../server/render/staged-file.ts';
 import { DEMO_CLIPS, synthDemoClip } from '../../shared/demo/clips.ts';
 import { DEMO_COILS } from '../../shared/demo/coils.ts';
 import { DEMO_DRIVERS } from '../../shared/demo/drivers.ts';
@@ -440,12 +441,14 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
       const names = { clip: clip.name, out: `${base}-${b.kind === 'render' ? 'coil' : 'arcs'}.wav` };
       const gainDb = b.gainDb ?? undefined;
       if (b.kind === 'render') {
-        const r = await renderJob(p.job, { names, gainDb, format: 's16', ceilingDbfs: 0 });
-        renders.set(id, { row, bytes: r.bytes, name: names.out });
+        const sink = new MemorySink();
+        const r = renderJob(p.job, { names, gainDb, format: 's16', ceilingDbfs: 0 }, sink);
+        renders.set(id, { row, bytes: sink.bytes(), name: names.out });
         Object.assign(row, { state: 'done', safe: r.summary.closedLoop.ok, summary: r.summary });
       } else {
-        const r = previewJob(p.job, { names, gainDb, format: 's16' });
-        renders.set(id, { row, bytes: r.bytes, name: names.out });
+        const sink = new MemorySink();
+        const r = previewJob(p.job, { names, gainDb, format: 's16' }, sink);
+        renders.set(id, { row, bytes: sink.bytes(), name: names.out });
         Object.assign(row, { state: 'done', safe: null, summary: r.summary });
       }
       return id;

@@ -1,7 +1,8 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { gridChart, gridCsv } from '../../../shared/preview/grid.ts';
-import { type WavSampleFormat, writeFileAtomic, writeWavAtomic } from '../../audio/wav.ts';
+import { type WavSampleFormat, writeFileAtomic } from '../../audio/wav.ts';
+import { StagedFile } from '../../render/staged-file.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type PreviewSummary, previewJob } from '../../services/render.ts';
 import { refuseOverwriteOfInput } from '../file-args.ts';
@@ -52,9 +53,22 @@ export const previewCommand: Command<typeof PREVIEW_OPTIONS.options> = {
     const format: WavSampleFormat = values.format;
     const channel: ModulationChannel = values.channel;
 
-    const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
-    const { bytes, summary: s } = previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns });
-    await writeWavAtomic(resolve(io.cwd, files.out), bytes);
+    // The preview reads no spectrum (its gain advice is the plan's; the pre-emphasis is the render's).
+    const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress, { spectrum: false }));
+    let s: PreviewSummary;
+    try {
+      // Written as it is made, under a temporary name beside the output, renamed when complete.
+      const out = StagedFile.create(resolve(io.cwd, files.out));
+      try {
+        s = previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns }, out).summary;
+        out.commit();
+      } catch (e) {
+        out.discard();
+        throw e;
+      }
+    } finally {
+      job.source.close();
+    }
     if (values.trace !== undefined) await writeFileAtomic(resolve(io.cwd, values.trace), new TextEncoder().encode(gridCsv(s.modulation.grid)));
     io.out(values.json ? `${JSON.stringify(s, null, 2)}\n` : formatPreview(s, values['chart-width']));
     return EXIT_OK;

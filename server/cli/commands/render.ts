@@ -1,6 +1,7 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
-import { type WavSampleFormat, writeWavAtomic } from '../../audio/wav.ts';
+import type { WavSampleFormat } from '../../audio/wav.ts';
+import { StagedFile } from '../../render/staged-file.ts';
 import { limitLabel, limitValueText } from '../../../shared/plan/limit-labels.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type RenderSummary, renderJob } from '../../services/render.ts';
@@ -79,10 +80,24 @@ export const renderCommand: Command<typeof RENDER_OPTIONS.options> = {
     const shelfHz = values['pre-emphasis-hz'];
 
     const job = await withProgress(io, 'analysing', (onProgress) => prepareJob(io.cwd, files, channel, onProgress));
-    const { bytes, summary: s } = await renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] });
-    // An unsafe render is not handed over under the output name unless asked (exit code 3 either way).
-    const write = s.safe || values['keep-unsafe'];
-    if (write) await writeWavAtomic(resolve(io.cwd, files.out), bytes);
+    let s: RenderSummary;
+    let write: boolean;
+    try {
+      // The file is written as it is rendered, under a temporary name beside the output; an unsafe
+      // render is not handed over under the output name unless asked (exit code 3 either way).
+      const out = StagedFile.create(resolve(io.cwd, files.out));
+      try {
+        s = renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] }, out).summary;
+        write = s.safe || values['keep-unsafe'];
+        if (write) out.commit();
+        else out.discard();
+      } catch (e) {
+        out.discard();
+        throw e;
+      }
+    } finally {
+      job.source.close();
+    }
     io.out(values.json ? `${JSON.stringify({ ...s, fileWritten: write }, null, 2)}\n` : formatRender(s, write));
     if (!s.safe) {
       io.err(`coilcue render: unsafe: ${s.unsafeReason}; ${write ? `${files.out} was kept (--keep-unsafe): do not play it on the coil` : `nothing was written to ${files.out}`}\n`);

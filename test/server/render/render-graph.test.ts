@@ -1,5 +1,5 @@
 /**
- * The Web Audio graph of the render (server/render/render-clip.ts renderGraph) through the
+ * The Web Audio graph of the render (server/render/render-graph.ts renderGraph) through the
  * `web-audio-api` package's OfflineAudioContext: transparency, the gain, and the high-shelf
  * pre-emphasis against R. Bristow-Johnson's *Audio EQ Cookbook* formulas (coded here from the
  * cookbook, independently of the package). Also why the render does not use the package's
@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { biquadGainDb, type BiquadCoeffs } from '../../../shared/dsp/biquad.ts';
 import { samplePeakLinear } from '../../../shared/dsp/true-peak.ts';
 import { ampToDb } from '../../../shared/units.ts';
-import { renderGraph } from '../../../server/render/render-clip.ts';
+import { renderGraph } from '../../../server/render/render-graph.ts';
 
 const FS = 44100;
 
