@@ -11,7 +11,7 @@ import { PITCH_HOP_S, PITCH_MAX_HZ } from '../../shared/analysis/tasks.ts';
 import { type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
 import type { PitchTrack } from '../../shared/dsp/pitch.ts';
 import { yinPitchTrack } from '../../shared/dsp/pitch.ts';
-import { WelchStream, type WelchSpectrum, welchPsd } from '../../shared/dsp/welch.ts';
+import { type WelchSpectrum, welchPsd } from '../../shared/dsp/welch.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { PlanClip } from '../../shared/plan/evaluate.ts';
 import { type PulseSource, toPlanClip } from '../../shared/plan/plan-clip.ts';
@@ -21,6 +21,7 @@ import { type DecodedClip, decodeAudioFile } from '../audio/decode.ts';
 import { PlanReducer } from '../render/closed-loop.ts';
 import { RENDER_BLOCK } from '../render/block-render.ts';
 import { openWavSource } from '../render/wav-source.ts';
+import { WelchOffThread } from './welch-thread.ts';
 
 /** A decoded file's description without its samples. */
 export type ClipInfo = Omit<DecodedClip, 'channels'> & { channelCount: number; sampleCount: number };
@@ -87,17 +88,21 @@ export async function loadForPlanning(
   const wantSpectrum = o.spectrum ?? true;
   // A WAV file is read again for each pass of the render and the preview instead of being kept.
   const file = o.keepSource ? openWavSource(path, channel, RENDER_BLOCK) : null;
+  // Welch's spectrum on the second core, its thread loading while the file is opened and decoded.
+  const offThread = wantSpectrum ? new WelchOffThread(size) : null;
   try {
     return await load();
   } catch (e) {
     file?.close();
+    offThread?.close();
     throw e;
   }
 
   /** The decoding and the reductions (the body of loadForPlanning, with `file` closed by the caller on error). */
   async function load(): Promise<PlanningInput> {
     let reducer: PlanReducer | null = null;
-    let welch: WelchStream | null = null;
+    /** Welch's spectrum block by block on the other thread; null when the source is kept whole (computed at the end) or no spectrum is wanted. */
+    let welch: WelchOffThread | null = null;
     /** The whole source (kept when asked for, for the pitch track, or when too short to stream Welch), else one block. */
     let source = new Float32Array(0);
     let whole = false;
@@ -112,25 +117,36 @@ export async function loadForPlanning(
         whole = (o.keepSource === true && file === null) || pitchLocked || (wantSpectrum && n < 4 * size);
         source = new Float32Array(whole ? n : 0);
         reducer = new PlanReducer(n, fs, o.pulses && pulseSource === 'zero-crossing');
-        welch = whole || !wantSpectrum ? null : new WelchStream(fs, size);
+        if (!whole && offThread) {
+          welch = offThread;
+          welch.start(fs);
+        } else offThread?.close();
         at = 0;
       },
       onFrames: (chs, from, to) => {
         const len = to - from;
+        if (welch) {
+          // the block goes into a shared buffer that the spectrum's thread reads after the reducer here
+          const block = welch.block(len);
+          writeModulationSource(chs, channel, block.subarray(-from), from, to);
+          reducer!.add(block);
+          welch.submit(block);
+          at += len;
+          return;
+        }
         if (!whole && source.length < len) source = new Float32Array(len);
         // the block lands at `at` in a whole source, at 0 in a block buffer
         const base = whole ? at : 0;
         writeModulationSource(chs, channel, source.subarray(base - from), from, to);
         const block = source.subarray(base, base + len);
         reducer!.add(block);
-        welch?.add(block);
         at += len;
       },
     });
     const fs = decoded.sampleRate;
     const n = at;
     progress(0.9, 'spectrum');
-    const spectrum = !wantSpectrum ? null : welch !== null ? (welch as WelchStream).result() : welchPsd(source, fs, { size });
+    const spectrum = !wantSpectrum ? null : welch !== null ? await (welch as WelchOffThread).result() : welchPsd(source, fs, { size });
     const frames = reducer!.result(o.name);
     let pitch: PitchTrack | null = null;
     let planClip = frames;
