@@ -3,9 +3,11 @@
  * under the final name only on commit; a discard, or a failure while the file is made, leaves
  * nothing behind and an existing file under the final name as it was.
  */
+import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { MemorySink, StagedFile } from '../../../server/render/staged-file.ts';
 
@@ -85,6 +87,23 @@ describe('StagedFile', () => {
     f.commit();
     expect(readdirSync(tmp)).toEqual([]);
     expect(Array.from(readFileSync(join(dir, 'f.wav')))).toEqual([5]);
+  });
+});
+
+describe('StagedFile when the process exits first', () => {
+  it('removes its temporary file on exit (Ctrl-C ends the command line with process.exit)', () => {
+    const script = join(dir, 'exits.mts');
+    const module = fileURLToPath(new URL('../../../server/render/staged-file.ts', import.meta.url));
+    writeFileSync(
+      script,
+      `import { StagedFile } from ${JSON.stringify(module)};\nconst f = StagedFile.create(${JSON.stringify(join(dir, 'g.wav'))});\nf.write(new Uint8Array(10));\nconsole.log(f.tmpPath);\nprocess.exit(130);\n`,
+    );
+    const r = spawnSync(process.execPath, ['--import', 'tsx', script], { encoding: 'utf8' });
+    expect(r.status).toBe(130);
+    const tmp = r.stdout.trim();
+    expect(tmp).toMatch(/\.g\.wav\..*\.tmp$/);
+    expect(existsSync(tmp)).toBe(false);
+    expect(existsSync(join(dir, 'g.wav'))).toBe(false);
   });
 });
 
