@@ -23,7 +23,7 @@
  */
 import { DEFAULT_LOOKAHEAD_S, DEFAULT_RELEASE_S, LimiterStream } from '../../shared/dsp/limiter.ts';
 import { TRUE_PEAK_PHASES, TruePeakMeter } from '../../shared/dsp/true-peak.ts';
-import { createRng } from '../../shared/demo/prng.ts';
+import { rngSeedState } from '../../shared/demo/prng.ts';
 import type { SampleBlocks } from '../../shared/preview/sample-blocks.ts';
 import { dbToAmp } from '../../shared/units.ts';
 import { type WavSampleFormat, encodeWav } from '../audio/wav.ts';
@@ -142,7 +142,8 @@ export class GraphStream {
  * (code/2^(b−1), or the float32 value): what the closed loop checks.
  */
 export class WavBlockEncoder {
-  private rng: () => number;
+  /** The dither generator's state (xoshiro128**, shared/demo/prng.ts createRng's, stepped inline). */
+  private rng: Int32Array;
   private written = 0;
   private readonly full: number;
   private readonly bytesPer: number;
@@ -158,7 +159,7 @@ export class WavBlockEncoder {
     private readonly onChunk: (bytes: Uint8Array) => void,
     private readonly onDecoded?: (samples: Float32Array) => void,
   ) {
-    this.rng = createRng(seed);
+    this.rng = rngSeedState(seed);
     this.full = format === 's16' ? 32768 : 8388608;
     this.bytesPer = format === 's16' ? 2 : format === 's24' ? 3 : 4;
     this.header = wavHeader(sampleRate, frames, format);
@@ -172,7 +173,7 @@ export class WavBlockEncoder {
 
   /** Starts the file over (a new pass): the header again, the dither generator from its seed. */
   restart(): void {
-    this.rng = createRng(this.seed);
+    this.rng = rngSeedState(this.seed);
     this.written = 0;
   }
 
@@ -199,9 +200,35 @@ export class WavBlockEncoder {
       const hi = full - 1;
       const inv = 1 / full;
       const dither = this.format === 's16';
-      const rng = this.rng;
+      const st = this.rng;
+      let s0 = st[0];
+      let s1 = st[1];
+      let s2 = st[2];
+      let s3 = st[3];
       for (let i = 0; i < n; i++) {
-        const d = dither ? rng() + rng() - 1 : 0; // TPDF, as encodeWav
+        // TPDF, as encodeWav: rng() + rng() − 1, with createRng's xoshiro128** step written out
+        let d = 0;
+        if (dither) {
+          let m = Math.imul(s1, 5);
+          const u1 = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;
+          let t = s1 << 9;
+          s2 ^= s0;
+          s3 ^= s1;
+          s1 ^= s2;
+          s0 ^= s3;
+          s2 ^= t;
+          s3 = (s3 << 11) | (s3 >>> 21);
+          m = Math.imul(s1, 5);
+          const u2 = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;
+          t = s1 << 9;
+          s2 ^= s0;
+          s3 ^= s1;
+          s1 ^= s2;
+          s0 ^= s3;
+          s2 ^= t;
+          s3 = (s3 << 11) | (s3 >>> 21);
+          d = u1 / 4294967296 + u2 / 4294967296 - 1;
+        }
         let q = Math.round(x[i] * full + d);
         q = q < lo ? lo : q > hi ? hi : q;
         dec[i] = q * inv;
@@ -213,6 +240,10 @@ export class WavBlockEncoder {
           out[3 * i + 2] = (q >> 16) & 0xff;
         }
       }
+      st[0] = s0;
+      st[1] = s1;
+      st[2] = s2;
+      st[3] = s3;
     }
     this.written += n;
     this.onChunk(out.subarray(0, n * this.bytesPer));

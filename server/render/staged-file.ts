@@ -8,12 +8,32 @@
  * bytes are kept.
  *
  * Writes are synchronous: the render and the preview produce their bytes in synchronous loops (the
- * command line, and the server's job threads, which serve no requests).
+ * command line, and the server's job threads, which serve no requests). A temporary file still
+ * pending when the process exits (Ctrl-C) is removed; one left by a kill that runs no handler
+ * (SIGKILL) is a hidden `.name….tmp` beside the output, or, for the server, swept from tmp/ at start.
  */
 import { randomBytes } from 'node:crypto';
 import { closeSync, fsyncSync, ftruncateSync, openSync, renameSync, unlinkSync, writeSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { writeError } from '../audio/wav.ts';
+
+/** Temporary files not yet committed or discarded: removed if the process exits first (Ctrl-C ends the command line with process.exit). */
+const pending = new Set<string>();
+let exitHook = false;
+function track(path: string): void {
+  pending.add(path);
+  if (exitHook) return;
+  exitHook = true;
+  process.once('exit', () => {
+    for (const p of pending) {
+      try {
+        unlinkSync(p);
+      } catch {
+        /* already gone */
+      }
+    }
+  });
+}
 
 /** Where a render's or a preview's bytes go, in order; `rewind` starts the file over (a pass replaced by the next). */
 export interface ByteSink {
@@ -54,7 +74,9 @@ export class StagedFile implements ByteSink {
     const tmp = tmpPath ?? join(dirname(finalPath), `.${basename(finalPath)}.${process.pid}.${randomBytes(6).toString('hex')}.tmp`);
     const asInput = (opts.fileSystemErrors ?? 'input') === 'input';
     try {
-      return new StagedFile(finalPath, tmp, openSync(tmp, 'wx', 0o644), asInput);
+      const f = new StagedFile(finalPath, tmp, openSync(tmp, 'wx', 0o644), asInput);
+      track(tmp);
+      return f;
     } catch (e) {
       throw asInput ? writeError(e, finalPath) : e;
     }
@@ -110,6 +132,7 @@ export class StagedFile implements ByteSink {
       closeSync(fd);
       this.fd = null;
       renameSync(this.tmpPath, this.finalPath);
+      pending.delete(this.tmpPath);
     } catch (e) {
       this.discard();
       throw this.failure(e);
@@ -137,6 +160,7 @@ export class StagedFile implements ByteSink {
     } catch {
       /* already gone */
     }
+    pending.delete(this.tmpPath);
   }
 }
 

@@ -18,17 +18,26 @@ const fmix32 = (h: number): number => {
 };
 
 /**
+ * The four 32-bit state words createRng(seed) starts from (module comment for the seeding), as
+ * int32, for a hot loop that steps xoshiro128** inline (the step is createRng's; bitwise operations
+ * read int32 and uint32 alike).
+ * @example rngSeedState(1).length // 4
+ */
+export function rngSeedState(seed: number): Int32Array {
+  let w = seed >>> 0;
+  const s = new Int32Array(4);
+  for (let k = 0; k < 4; k++) s[k] = fmix32((w = (w + 0x9e3779b9) >>> 0));
+  if ((s[0] | s[1] | s[2] | s[3]) === 0) s[0] = 1;
+  return s;
+}
+
+/**
  * Creates a generator from an integer seed (taken modulo 2^32). Same seed, same sequence.
  * Output: u/2^32 for the 32-bit word u, so values lie on a grid of 2^-32 in [0, 1).
  * @example const rnd = createRng(42); rnd() // a number in [0, 1)
  */
 export function createRng(seed: number): Rng {
-  let w = seed >>> 0;
-  let s0 = fmix32((w = (w + 0x9e3779b9) >>> 0));
-  let s1 = fmix32((w = (w + 0x9e3779b9) >>> 0));
-  let s2 = fmix32((w = (w + 0x9e3779b9) >>> 0));
-  let s3 = fmix32((w = (w + 0x9e3779b9) >>> 0));
-  if ((s0 | s1 | s2 | s3) === 0) s0 = 1;
+  let [s0, s1, s2, s3] = rngSeedState(seed);
   return () => {
     const m = Math.imul(s1, 5);
     const result = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;

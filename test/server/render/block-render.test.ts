@@ -3,15 +3,22 @@
  * against the whole-buffer render it replaces: the `web-audio-api` package's OfflineAudioContext
  * graph (renderGraph) over the whole signal, then lookAheadLimit over the whole output, then
  * encodeWav. The file must be the same within 1 LSB (16/24-bit) or 1e-6 (float), whatever the block
- * length, including blocks shorter than the limiter's look-ahead (220 samples at 44.1 kHz).
+ * length, including blocks shorter than the limiter's look-ahead (220 samples at 44.1 kHz), and
+ * whether the source is an array or the WAV file read again for each pass (wav-source.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { decodeAudioBytes } from '../../../server/audio/decode.ts';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { decodeAudioBytes, decodeAudioFile } from '../../../server/audio/decode.ts';
 import { type WavSampleFormat, encodeWav } from '../../../server/audio/wav.ts';
 import { ANNEX2_ABS_TAP_SUM, GraphStream, WavBlockEncoder } from '../../../server/render/block-render.ts';
 import { PlanReducer, ZeroCrossingStream } from '../../../server/render/closed-loop.ts';
 import { type PreEmphasis, quantisationMargin, renderModulationWav } from '../../../server/render/render-clip.ts';
 import { renderGraph } from '../../../server/render/render-graph.ts';
+import { openWavSource } from '../../../server/render/wav-source.ts';
+import { modulationSource } from '../../../shared/audio/clip.ts';
+import type { SampleBlocks } from '../../../shared/preview/sample-blocks.ts';
 import { sourceStatsPass } from '../../../shared/dsp/envelope.ts';
 import { FrameStatsStream, computeFrameStats } from '../../../shared/dsp/frame-stats.ts';
 import { lookAheadLimit } from '../../../shared/dsp/limiter.ts';
@@ -45,7 +52,7 @@ async function wholeBufferRender(x: Float32Array, gainDb: number, pe: PreEmphasi
 }
 
 /** The block render into bytes, decoded back. */
-async function blockRender(x: Float32Array, gainDb: number, pe: PreEmphasis | null, format: WavSampleFormat, blockSize: number) {
+async function blockRender(x: Float32Array | SampleBlocks, gainDb: number, pe: PreEmphasis | null, format: WavSampleFormat, blockSize: number) {
   let parts: Uint8Array[] = [];
   const fig = renderModulationWav(x, FS, 'mix', { gainDb, preEmphasis: pe, format, blockSize }, {
     onChunk: (b) => parts.push(b.slice()),
@@ -108,6 +115,33 @@ describe('the render block by block against the whole-buffer render', () => {
     const parts: Uint8Array[] = [];
     renderModulationWav(new Float32Array(0), FS, 'mix', { gainDb: 0, format: 's16', blockSize: 64 }, { onChunk: (b) => parts.push(b.slice()) });
     expect(new Uint8Array(Buffer.concat(parts))).toEqual(encodeWav({ sampleRate: FS, channels: [new Float32Array(0)] }, { format: 's16' }));
+  });
+});
+
+describe('the render read from the WAV file against the whole-buffer render', () => {
+  it('a long stereo file, its mix read again from the file for each pass: the same file within 1 LSB', async () => {
+    // 40 s of stereo programme, the channels out of step, as a 16-bit file: the source the command
+    // line and the server render from.
+    const left = programme(40, 5);
+    const right = programme(40, 6).map((v, i) => 0.8 * v + 0.2 * left[(i + 333) % left.length]);
+    const dir = mkdtempSync(join(tmpdir(), 'coilcue-block-file-'));
+    try {
+      const path = join(dir, 'long.wav');
+      writeFileSync(path, encodeWav({ sampleRate: FS, channels: [left, right] }, { format: 's16', seed: 2 }));
+      const source = modulationSource(await decodeAudioFile(path), 'mix');
+      const pe = { cornerHz: 900, shelfGainDb: 4 };
+      const ref = await wholeBufferRender(source, 5, pe, 's16');
+      // 97 < the limiter's 220 samples of look-ahead; 4099 and 65521 are primes; reads of the file as long as the blocks
+      for (const blockSize of [97, 4099, 65521]) {
+        const file = openWavSource(path, 'mix', blockSize)!;
+        const { samples, fig } = await blockRender(file, 5, pe, 's16', blockSize);
+        file.close();
+        expect(maxDiff(ref, samples)).toBeLessThanOrEqual(LSB.s16);
+        expect(fig.limiter!.passes).toBeGreaterThanOrEqual(2);
+      }
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
 

@@ -10,7 +10,8 @@ import { DEMO_COILS } from '../../../shared/demo/coils.ts';
 import { DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../../shared/demo/drivers.ts';
 import { analyzeCoil } from '../../../shared/physics/coil/analyze.ts';
 import { pulsesAtGain, zeroCrossingEvents } from '../../../shared/plan/pulse-train.ts';
-import { arcSound, levelTriple, onePoleGain, onePoleLowpass } from '../../../shared/preview/arc-sound.ts';
+import { arcSound, arcSoundBlocks, levelTriple, onePoleGain, onePoleLowpass } from '../../../shared/preview/arc-sound.ts';
+import type { SampleBlocks } from '../../../shared/preview/sample-blocks.ts';
 
 const FS = 44100;
 // Q pinned at 377 (the skin-effect-only figure) so the corner stays ≈ 435 Hz, well below fs/10.
@@ -173,4 +174,28 @@ describe('block by block', () => {
       expect(whole.output.truePeak).toBeLessThanOrEqual(whole.source.truePeak);
     });
   }
+
+  it('the same from SampleBlocks read again for each pass (a file-like reader of 4099 samples at a time)', () => {
+    for (const driver of [DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE]) {
+      const whole = arcSound(x, FS, driver, coil, 3, { peakMargin: 1.5 / 32768 });
+      // a reader that copies into one reused buffer, as the WAV reader does
+      const buf = new Float32Array(4099);
+      const blocks: SampleBlocks = { length: n, maxBlock: buf.length, read: (from, count) => (buf.set(x.subarray(from, from + count)), buf.subarray(0, count)), close() {} };
+      const got = new Float32Array(n);
+      let at = 0;
+      const pulseEvents = driver.scheme === 'pulse' ? zeroCrossingEvents(x, FS) : undefined;
+      const r = arcSoundBlocks(blocks, FS, driver, coil, 3, { peakMargin: 1.5 / 32768, pulseEvents }, (b) => {
+        got.set(b, at);
+        at += b.length;
+      });
+      let diff = 0;
+      for (let i = 0; i < n; i++) if (!Object.is(got[i], whole.samples[i])) diff++;
+      expect(diff).toBe(0);
+      expect(r.source).toEqual(whole.source);
+      expect(r.output).toEqual(whole.output);
+    }
+    // the pulse scheme cannot find its zero crossings in blocks: it must be given them
+    const one: SampleBlocks = { length: n, maxBlock: n, read: (from, count) => x.subarray(from, from + count), close() {} };
+    expect(() => arcSoundBlocks(one, FS, DEMO_DRIVER_PULSE, coil, 3, {}, () => {})).toThrow(/pulseEvents/);
+  });
 });
