@@ -13,6 +13,7 @@
 // file under the output name).
 'use strict';
 require('tsx/cjs/api').register();
+require('../server/typebox-bundle.cjs').install(); // TypeBox from one file (the file says why)
 const { main } = require('../server/cli/main.ts');
 
 const INTERRUPTED = 130;

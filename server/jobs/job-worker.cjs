@@ -12,6 +12,7 @@ try {
   /* not permitted here */
 }
 require('tsx/cjs/api').register();
+require('../typebox-bundle.cjs').install(); // TypeBox from one file (the file says why)
 const { runTask } = require('./tasks.ts');
 // The analysis's second thread, loading while this one waits for work (tasks.ts starts the next
 // one after each analysis); unreferenced, it never keeps the thread alive.
