@@ -122,7 +122,7 @@ async function run(task: Task): Promise<unknown> {
         try {
           summary =
             task.kind === 'render'
-              ? renderJob(job, { names, gainDb, format: task.format, preEmphasisDb: task.preEmphasisDb, ceilingDbfs: task.ceilingDbfs }, out).summary
+              ? (await renderJob(job, { names, gainDb, format: task.format, preEmphasisDb: task.preEmphasisDb, ceilingDbfs: task.ceilingDbfs }, out)).summary
               : previewJob(job, { names, gainDb, format: task.format }, out).summary;
           progress(0.95, 'storing');
           out.commit();

@@ -168,7 +168,7 @@ export class StagedFile implements ByteSink {
  * A ByteSink into memory, for tests and for callers that want the bytes (short clips only: it holds
  * the whole file).
  *
- * @example const m = new MemorySink(); renderJob(job, opts, m); m.bytes()
+ * @example const m = new MemorySink(); await renderJob(job, opts, m); m.bytes()
  */
 export class MemorySink implements ByteSink {
   private buf = new Uint8Array(1 << 16);

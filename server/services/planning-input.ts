@@ -21,7 +21,7 @@ import { type DecodedClip, decodeAudioFile } from '../audio/decode.ts';
 import { PlanReducer } from '../render/closed-loop.ts';
 import { RENDER_BLOCK } from '../render/block-render.ts';
 import { openWavSource } from '../render/wav-source.ts';
-import { WelchOffThread } from './welch-thread.ts';
+import { ReductionThread } from './reduction-thread.ts';
 
 /** A decoded file's description without its samples. */
 export type ClipInfo = Omit<DecodedClip, 'channels'> & { channelCount: number; sampleCount: number };
@@ -89,7 +89,7 @@ export async function loadForPlanning(
   // A WAV file is read again for each pass of the render and the preview instead of being kept.
   const file = o.keepSource ? openWavSource(path, channel, RENDER_BLOCK) : null;
   // Welch's spectrum on the second core, its thread loading while the file is opened and decoded.
-  const offThread = wantSpectrum ? new WelchOffThread(size) : null;
+  const offThread = wantSpectrum ? new ReductionThread<WelchSpectrum>() : null;
   try {
     return await load();
   } catch (e) {
@@ -102,7 +102,7 @@ export async function loadForPlanning(
   async function load(): Promise<PlanningInput> {
     let reducer: PlanReducer | null = null;
     /** Welch's spectrum block by block on the other thread; null when the source is kept whole (computed at the end) or no spectrum is wanted. */
-    let welch: WelchOffThread | null = null;
+    let welch: ReductionThread<WelchSpectrum> | null = null;
     /** The whole source (kept when asked for, for the pitch track, or when too short to stream Welch), else one block. */
     let source = new Float32Array(0);
     let whole = false;
@@ -119,26 +119,18 @@ export async function loadForPlanning(
         reducer = new PlanReducer(n, fs, o.pulses && pulseSource === 'zero-crossing');
         if (!whole && offThread) {
           welch = offThread;
-          welch.start(fs);
+          welch.start({ kind: 'welch', sampleRate: fs, size });
         } else offThread?.close();
         at = 0;
       },
       onFrames: (chs, from, to) => {
         const len = to - from;
-        if (welch) {
-          // the block goes into a shared buffer that the spectrum's thread reads after the reducer here
-          const block = welch.block(len);
-          writeModulationSource(chs, channel, block.subarray(-from), from, to);
-          reducer!.add(block);
-          welch.submit(block);
-          at += len;
-          return;
-        }
         if (!whole && source.length < len) source = new Float32Array(len);
         // the block lands at `at` in a whole source, at 0 in a block buffer
         const base = whole ? at : 0;
         writeModulationSource(chs, channel, source.subarray(base - from), from, to);
         const block = source.subarray(base, base + len);
+        welch?.add(block); // copied into the other thread's ring first, so the two threads overlap
         reducer!.add(block);
         at += len;
       },
@@ -146,7 +138,7 @@ export async function loadForPlanning(
     const fs = decoded.sampleRate;
     const n = at;
     progress(0.9, 'spectrum');
-    const spectrum = !wantSpectrum ? null : welch !== null ? await (welch as WelchOffThread).result() : welchPsd(source, fs, { size });
+    const spectrum = !wantSpectrum ? null : welch !== null ? await (welch as ReductionThread<WelchSpectrum>).result() : welchPsd(source, fs, { size });
     const frames = reducer!.result(o.name);
     let pitch: PitchTrack | null = null;
     let planClip = frames;

@@ -23,6 +23,8 @@ import type { WavSampleFormat } from '../audio/wav.ts';
 import { GraphStream, RENDER_BLOCK, WavBlockEncoder } from '../render/block-render.ts';
 import type { ByteSink } from '../render/staged-file.ts';
 import { type ClosedLoopReport, PlanReducer, closedLoopCheck } from '../render/closed-loop.ts';
+import { ReductionThread } from './reduction-thread.ts';
+import type { PlanClip } from '../../shared/plan/evaluate.ts';
 import { type PreEmphasis, type RenderedModulation, type RenderedModulationFigures, quantisationMargin, renderModulationWav } from '../render/render-clip.ts';
 import { type GainChoice, type PreparedJob, chooseGain } from './plan.ts';
 
@@ -160,49 +162,61 @@ export interface RenderOptions {
  * is the verdict on which the caller keeps or drops the file. InputError when the pre-emphasis
  * corner is not below half the sample rate or no gain is safe.
  */
-export function renderJob(job: PreparedJob, o: RenderOptions, out: ByteSink): { summary: RenderSummary } {
+export async function renderJob(job: PreparedJob, o: RenderOptions, out: ByteSink): Promise<{ summary: RenderSummary }> {
   const fs = job.clip.sampleRate;
   const n = job.source.length;
-  let preEmphasis: PreEmphasis | null = null;
-  let plan = job.plan;
-  const emphasis = chooseEmphasis(job, o.preEmphasisDb ?? 'auto');
-  if (emphasis.shelfDb !== 0) {
-    const cornerHz = o.preEmphasisHz ?? emphasis.cornerHz;
-    if (!(cornerHz < fs / 2)) {
-      throw new InputError('bad-pre-emphasis', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower corner frequency`, 'preEmphasisHz');
-    }
-    preEmphasis = { cornerHz, shelfGainDb: emphasis.shelfDb };
-    // The advice must be for the signal that reaches the coil: plan the emphasised source (block by
-    // block through the shelf, reduced to what planning reads as it goes).
-    plan = emphasisedPlan(job.source, fs, preEmphasis, job.clipPath, job.driver.scheme === 'pulse');
+  // The closed loop's reductions on the second core while this thread renders; the thread loads
+  // while the gain is chosen.
+  const loopReduction = new ReductionThread<PlanClip>();
+  try {
+    return await render();
+  } catch (e) {
+    loopReduction.close();
+    throw e;
   }
-  const choice = chooseGain(plan, job, o.gainDb);
-  // Block by block into the file, and (closed loop) the samples the file holds as a reader decodes
-  // them into the planner's reductions. The header goes out last (patched over zeros), so a file cut
-  // short never reads as a whole WAV.
-  const reducer = new PlanReducer(n, fs, job.driver.scheme === 'pulse');
-  const file = headerLastSink(out);
-  const rendered = renderModulationWav(
-    job.source,
-    fs,
-    job.channel,
-    { gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format },
-    {
-      onChunk: (b) => file.write(b),
-      onDecoded: (x) => reducer.add(x),
-      onRestart: () => {
-        file.rewind();
-        reducer.restart();
+
+  async function render(): Promise<{ summary: RenderSummary }> {
+    let preEmphasis: PreEmphasis | null = null;
+    let plan = job.plan;
+    const emphasis = chooseEmphasis(job, o.preEmphasisDb ?? 'auto');
+    if (emphasis.shelfDb !== 0) {
+      const cornerHz = o.preEmphasisHz ?? emphasis.cornerHz;
+      if (!(cornerHz < fs / 2)) {
+        throw new InputError('bad-pre-emphasis', `the pre-emphasis corner ${cornerHz.toFixed(0)} Hz is not below half the sample rate (${fs / 2} Hz); give a lower corner frequency`, 'preEmphasisHz');
+      }
+      preEmphasis = { cornerHz, shelfGainDb: emphasis.shelfDb };
+      // The advice must be for the signal that reaches the coil: plan the emphasised source (block by
+      // block through the shelf, reduced to what planning reads as it goes).
+      plan = emphasisedPlan(job.source, fs, preEmphasis, job.clipPath, job.driver.scheme === 'pulse');
+    }
+    const choice = chooseGain(plan, job, o.gainDb);
+    // Block by block into the file, and (closed loop) the samples the file holds as a reader decodes
+    // them into the planner's reductions. The header goes out last (patched over zeros), so a file cut
+    // short never reads as a whole WAV.
+    loopReduction.start({ kind: 'plan', sampleCount: n, sampleRate: fs, pulses: job.driver.scheme === 'pulse', name: o.names.out });
+    const file = headerLastSink(out);
+    const rendered = renderModulationWav(
+      job.source,
+      fs,
+      job.channel,
+      { gainDb: choice.gainDb, preEmphasis, ceilingDbfs: o.ceilingDbfs, format: o.format },
+      {
+        onChunk: (b) => file.write(b),
+        onDecoded: (x) => loopReduction.add(x),
+        onRestart: () => {
+          file.rewind();
+          loopReduction.restart();
+        },
       },
-    },
-  );
-  file.finish();
-  const loop = closedLoopCheck(reducer.result(o.names.out), o.names.out, job.coil, job.driver, job.settings, choice.promised);
-  const note =
-    preEmphasis === null
-      ? emphasis.note
-      : `${emphasis.note}: a first-order high shelf of ${preEmphasis.shelfGainDb >= 0 ? '+' : ''}${preEmphasis.shelfGainDb.toFixed(1)} dB from ${preEmphasis.cornerHz.toFixed(0)} Hz`;
-  return { summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
+    );
+    file.finish();
+    const loop = closedLoopCheck(await loopReduction.result(), o.names.out, job.coil, job.driver, job.settings, choice.promised);
+    const note =
+      preEmphasis === null
+        ? emphasis.note
+        : `${emphasis.note}: a first-order high shelf of ${preEmphasis.shelfGainDb >= 0 ? '+' : ''}${preEmphasis.shelfGainDb.toFixed(1)} dB from ${preEmphasis.cornerHz.toFixed(0)} Hz`;
+    return { summary: renderSummary(o.names, o.format, rendered, job, choice, loop, { from: emphasis.from, note }, plan.histogram) };
+  }
 }
 
 /**

@@ -442,7 +442,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
       const gainDb = b.gainDb ?? undefined;
       if (b.kind === 'render') {
         const sink = new MemorySink();
-        const r = renderJob(p.job, { names, gainDb, format: 's16', ceilingDbfs: 0 }, sink);
+        const r = await renderJob(p.job, { names, gainDb, format: 's16', ceilingDbfs: 0 }, sink);
         renders.set(id, { row, bytes: sink.bytes(), name: names.out });
         Object.assign(row, { state: 'done', safe: r.summary.closedLoop.ok, summary: r.summary });
       } else {

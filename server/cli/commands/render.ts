@@ -87,7 +87,7 @@ export const renderCommand: Command<typeof RENDER_OPTIONS.options> = {
       // render is not handed over under the output name unless asked (exit code 3 either way).
       const out = StagedFile.create(resolve(io.cwd, files.out));
       try {
-        s = renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] }, out).summary;
+        s = (await renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] }, out)).summary;
         write = s.safe || values['keep-unsafe'];
         if (write) out.commit();
         else out.discard();
