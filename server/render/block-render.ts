@@ -371,7 +371,10 @@ export function renderBlocks(
       graph.process(source.read(at, blk.length), blk);
       if (first) {
         before.add(blk);
-        for (let i = 0; i < blk.length; i++) beforePeak = Math.max(beforePeak, Math.abs(blk[i]));
+        for (let i = 0; i < blk.length; i++) {
+          const v = Math.abs(blk[i]);
+          if (v > beforePeak) beforePeak = v;
+        }
       }
       emit(out.subarray(0, stream.write(blk, out)));
     }

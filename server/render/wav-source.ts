@@ -17,6 +17,8 @@ import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import { type ChannelBlockReader, ModulationBlocks, type SampleBlocks } from '../../shared/preview/sample-blocks.ts';
 import { type WavHeader, convertWavFrames, parseWavHeaderPrefix } from '../audio/wav-parse.ts';
 
+const LITTLE_ENDIAN = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+
 /** First bytes read for the header; longer prefixes are read until it is complete. */
 const HEAD_BYTES = 64 << 10;
 
@@ -105,11 +107,16 @@ export class WavChannelReader implements ChannelBlockReader {
     if (!sameFile(now, this.stats) || !sameFile(named, this.stats)) throw changed(this.path);
   }
 
-  /** Frames from…from+count−1 of every channel: the first `count` samples of each array returned (reused by the next read). */
-  readChannels(from: number, count: number): Float32Array[] {
+  /** True for 16-bit PCM in two channels: the layout {@link readBytes} serves the fused mix of openWavSource. */
+  get isStereo16(): boolean {
+    return this.h.encoding === 'int' && this.h.containerBytes === 2 && this.h.channelCount === 2;
+  }
+
+  /** The data chunk's bytes of frames from…from+count−1 (a view reused by the next read; at offset 0 of its buffer). */
+  readBytes(from: number, count: number): Uint8Array {
     if (this.fd === null) throw new RangeError('WavChannelReader: read after close');
     if (!(Number.isInteger(from) && Number.isInteger(count) && from >= 0 && count >= 0 && count <= this.maxBlock && from + count <= this.frames)) {
-      throw new RangeError(`WavChannelReader.readChannels: frames ${from}…${from + count - 1} (at most ${this.maxBlock} at a time) outside 0…${this.frames - 1}`);
+      throw new RangeError(`WavChannelReader: frames ${from}…${from + count - 1} (at most ${this.maxBlock} at a time) outside 0…${this.frames - 1}`);
     }
     if (from === 0) this.checkUnchanged();
     const h = this.h;
@@ -121,6 +128,13 @@ export class WavChannelReader implements ChannelBlockReader {
       if (n === 0) throw changed(this.path);
       got += n;
     }
+    return buf;
+  }
+
+  /** Frames from…from+count−1 of every channel: the first `count` samples of each array returned (reused by the next read). */
+  readChannels(from: number, count: number): Float32Array[] {
+    const h = this.h;
+    const buf = this.readBytes(from, count);
     const bad = convertWavFrames(buf, h, this.channels, 0, count);
     if (bad >= 0) throw new InputError('corrupt', `the float WAV file holds a sample that is not a number (NaN or infinity) at ${((from + bad) / h.sampleRate).toFixed(3)} s; the file is damaged`);
     return this.channels;
@@ -148,6 +162,24 @@ export interface WavSource extends SampleBlocks {
 export function openWavSource(path: string, channel: ModulationChannel, maxBlock: number): WavSource | null {
   const reader = WavChannelReader.open(path, maxBlock);
   if (reader === null) return null;
+  if (channel === 'mix' && reader.isStereo16 && LITTLE_ENDIAN) {
+    // The common file, mixed straight from its codes: the decoder reads k/32768 (exact in float32),
+    // modulationSource sums two of them (|k1 + k2| ≤ 2^16: exact) and halves (exact), so the mix
+    // is exactly (k1 + k2)/65536, which this computes in one pass over the bytes (~3× quicker).
+    const out = new Float32Array(reader.maxBlock);
+    return {
+      reader,
+      length: reader.frames,
+      maxBlock: reader.maxBlock,
+      read(from, count) {
+        const b = reader.readBytes(from, count);
+        const codes = new Int16Array(b.buffer, b.byteOffset, 2 * count);
+        for (let i = 0, k = 0; i < count; i++, k += 2) out[i] = (codes[k] + codes[k + 1]) * (1 / 65536);
+        return out.subarray(0, count);
+      },
+      close: () => reader.close(),
+    };
+  }
   const blocks = new ModulationBlocks(reader, channel);
   return {
     reader,
