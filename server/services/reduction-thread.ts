@@ -22,8 +22,8 @@ import { Worker } from 'node:worker_threads';
 import { END, HEAD, LEN, RESTART, type ReductionKind, type ReductionReply, type ReductionRequest, type Ring, STOPPED, type StreamReducer, TAIL, streamReducer } from './reduction-serve.ts';
 
 const ENTRY = new URL('./reduction-thread.cjs', import.meta.url);
-/** Slots of the ring and samples a slot holds: 8 × 64 Ki samples, 2 MiB in all. */
-const SLOTS = 8;
+/** Slots of the ring and samples a slot holds: 16 × 64 Ki samples, 4 MiB in all (room for the other thread to fall behind for a moment). */
+const SLOTS = 16;
 const SLOT_SAMPLES = 1 << 16;
 /** How long the producer waits for a free slot before it takes the thread for dead, ms. */
 const STALL_MS = 20_000;
