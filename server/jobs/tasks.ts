@@ -20,7 +20,7 @@ import { analysisDocument, loadAndAnalyze } from '../services/analysis.ts';
 import { prepareLoadedJob } from '../services/plan.ts';
 import { coilReportFor } from '../services/profiles.ts';
 import { type PreviewSummary, type RenderSummary, previewJob, renderJob } from '../services/render.ts';
-import { StagedFile } from '../render/staged-file.ts';
+import { StagedFile, writeStaged } from '../render/staged-file.ts';
 import { gainSearchOf } from '../../shared/plan/advise.ts';
 import { type PlanSettingsInput, type StoredReductions, planStoredSet, storedPlanDocument } from '../services/stored-plan.ts';
 import { commitFile, removeQuietly } from '../storage/files.ts';
@@ -118,18 +118,14 @@ async function run(task: Task): Promise<unknown> {
         const gainDb = task.gainDb ?? undefined;
         // Written under tmp/ as it is made, renamed to its final name once complete (a render that
         // breaks its plan is kept too, and marked so below).
-        const out = StagedFile.create(task.finalPath, task.tmpPath, { fileSystemErrors: 'as-is' });
-        try {
-          summary =
+        summary = await writeStaged(StagedFile.create(task.finalPath, task.tmpPath, { fileSystemErrors: 'as-is' }), async (out) => {
+          const made =
             task.kind === 'render'
               ? (await renderJob(job, { names, gainDb, format: task.format, preEmphasisDb: task.preEmphasisDb, ceilingDbfs: task.ceilingDbfs }, out)).summary
               : previewJob(job, { names, gainDb, format: task.format }, out).summary;
           progress(0.95, 'storing');
-          out.commit();
-        } catch (e) {
-          out.discard();
-          throw e;
-        }
+          return made;
+        });
       } finally {
         job.source.close();
       }

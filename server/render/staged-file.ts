@@ -165,6 +165,25 @@ export class StagedFile implements ByteSink {
 }
 
 /**
+ * Makes a file through a staged sink: `make` writes it, then it is committed under its final name
+ * if `keep` says so of the result (default: always) or discarded; discarded too if `make` throws.
+ *
+ * @example const s = await writeStaged(StagedFile.create(out), (sink) => renderJob(job, o, sink), (r) => r.summary.safe)
+ */
+export async function writeStaged<T>(file: StagedFile, make: (sink: StagedFile) => T | Promise<T>, keep: (result: T) => boolean = () => true): Promise<T> {
+  let result: T;
+  try {
+    result = await make(file);
+  } catch (e) {
+    file.discard();
+    throw e;
+  }
+  if (keep(result)) file.commit();
+  else file.discard();
+  return result;
+}
+
+/**
  * A ByteSink into memory, for tests and for callers that want the bytes (short clips only: it holds
  * the whole file).
  *

@@ -2,7 +2,7 @@ import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import { gridChart, gridCsv } from '../../../shared/preview/grid.ts';
 import { type WavSampleFormat, writeFileAtomic } from '../../audio/wav.ts';
-import { StagedFile } from '../../render/staged-file.ts';
+import { StagedFile, writeStaged } from '../../render/staged-file.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type PreviewSummary, previewJob } from '../../services/render.ts';
 import { refuseOverwriteOfInput } from '../file-args.ts';
@@ -58,14 +58,7 @@ export const previewCommand: Command<typeof PREVIEW_OPTIONS.options> = {
     let s: PreviewSummary;
     try {
       // Written as it is made, under a temporary name beside the output, renamed when complete.
-      const out = StagedFile.create(resolve(io.cwd, files.out));
-      try {
-        s = previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns }, out).summary;
-        out.commit();
-      } catch (e) {
-        out.discard();
-        throw e;
-      }
+      s = (await writeStaged(StagedFile.create(resolve(io.cwd, files.out)), (out) => previewJob(job, { names: files, gainDb: values['gain-db'], format, columns: values.columns }, out))).summary;
     } finally {
       job.source.close();
     }

@@ -1,7 +1,7 @@
 import { resolve } from 'node:path';
 import type { ModulationChannel } from '../../../shared/audio/clip.ts';
 import type { WavSampleFormat } from '../../audio/wav.ts';
-import { StagedFile } from '../../render/staged-file.ts';
+import { StagedFile, writeStaged } from '../../render/staged-file.ts';
 import { limitLabel, limitValueText } from '../../../shared/plan/limit-labels.ts';
 import { prepareJob } from '../../services/plan.ts';
 import { type RenderSummary, renderJob } from '../../services/render.ts';
@@ -85,16 +85,13 @@ export const renderCommand: Command<typeof RENDER_OPTIONS.options> = {
     try {
       // The file is written as it is rendered, under a temporary name beside the output; an unsafe
       // render is not handed over under the output name unless asked (exit code 3 either way).
-      const out = StagedFile.create(resolve(io.cwd, files.out));
-      try {
-        s = (await renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] }, out)).summary;
-        write = s.safe || values['keep-unsafe'];
-        if (write) out.commit();
-        else out.discard();
-      } catch (e) {
-        out.discard();
-        throw e;
-      }
+      const made = await writeStaged(
+        StagedFile.create(resolve(io.cwd, files.out)),
+        (out) => renderJob(job, { names: files, gainDb: values['gain-db'], format, preEmphasisDb: shelfDb, preEmphasisHz: shelfHz, ceilingDbfs: values['ceiling-dbfs'] }, out),
+        (r) => r.summary.safe || values['keep-unsafe'],
+      );
+      s = made.summary;
+      write = s.safe || values['keep-unsafe'];
     } finally {
       job.source.close();
     }
