@@ -86,6 +86,16 @@ describe('DeviceRun.runFrames: thermal runaway', () => {
     expect(run.runawayAtS).toBe(0);
   });
 
+  it('keeps the first runaway by temperature, and times it in frames of any length', () => {
+    // α = 0, Tj max 50 °C: 50 W gives a mean rise of h·50 W ≫ 25 K from the first frame (hand value),
+    // so the first frame is the runaway, at t = 0, and the second does not move it.
+    const hot = frames(device(0, 50), { supplyV: 10, rS: 0, r3: 0, oM: 0, oS: 0.5, oC: 0 }, [[10, 100], [10, 100]], 1).run;
+    expect(hot.runawayAtS).toBe(0);
+    // Half-second frames: loop gain 200·0.01·h(0.5 s) = 1.96 (h = 1 − 0.02 = 0.98 K/W): the third frame, at 1 s.
+    const { run } = frames(device(0.01), model, [[1, 1], [1, 1], [10, 100]], 0.5);
+    expect(run.runawayAtS).toBe(1);
+  });
+
   it('keeps a runaway recorded before the frames', () => {
     const run = new DeviceRun('bridge', 1, device(0.01), 25, undefined, undefined);
     run.solve({ resistiveAt25W: 200, conductionFixedW: 0, switchingW: 0, capacitiveW: 0 }, run.net.coefficients(1), 0.5);
