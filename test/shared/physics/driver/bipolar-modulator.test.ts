@@ -3,6 +3,7 @@ import { bjtBridgeLossParts, bjtSaturationWarning } from '../../../../shared/phy
 import { emptyLossParts, modulatorLossParts, modulatorTaperV, railMoments } from '../../../../shared/physics/driver/losses.ts';
 import { deviceSwitching, tooSlowLabel, tooSlowWarning } from '../../../../shared/physics/driver/transition.ts';
 import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR } from '../../../../shared/demo/drivers.ts';
+import { deviceWarnings } from '../../../../shared/physics/driver/common.ts';
 import type { DriverDevice, DriverProfile } from '../../../../shared/schemas/driver.ts';
 
 // A bipolar buck modulator's loss term by term against hand values, the bipolar saturation warning
@@ -123,5 +124,19 @@ describe('switching speed of each role', () => {
     expect(tooSlowWarning(deviceSwitching(withBjt(DEMO_DRIVER_BUCK, 20e3), 'modulator', 300e3))).toBe('');
     expect(tooSlowLabel({ role: 'pass', switchingHz: null })).toBe('pass switch: too slow for its switching frequency');
     expect(tooSlowLabel({ role: 'bridge', switchingHz: 999e3 })).toBe('bridge switch: too slow for 999 kHz');
+  });
+});
+
+describe('deviceWarnings: bipolar saturation per role', () => {
+  it("takes the bridge's peak as k_pk·I and the modulator's as I, and skips the pass device", () => {
+    // Full bridge at I = 4 A: switch peak (π/2)·4 = 6.28 A (Erickson & Maksimović §19.1); the buck
+    // modulator carries the rail current itself, 4 A. Both are above the 3 A V_CE(sat) is stated at.
+    const buck: DriverProfile = { ...structuredClone(DEMO_DRIVER_BUCK), devices: [{ ...BJT, role: 'bridge' }, BJT] };
+    expect(deviceWarnings(buck, 120e3)).toEqual([bjtSaturationWarning(BJT, 'bridge', 2 * Math.PI), bjtSaturationWarning(BJT, 'modulator', 4)]);
+    expect(deviceWarnings(buck, 120e3)[0]).toContain('peak collector current 6.28 A');
+    // A bipolar pass device works in its linear region: no saturation warning for it.
+    const linear: DriverProfile = { ...structuredClone(DEMO_DRIVER_LINEAR), fullRailCurrentA: 40, supplyCurrentLimitA: 50 };
+    linear.devices[1] = { ...BJT, role: 'pass', riseTimeS: 0, fallTimeS: 0, storageTimeS: 0 };
+    expect(deviceWarnings(linear, 120e3)).toEqual([]);
   });
 });
