@@ -3,6 +3,7 @@ import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR, DEMO_DRIVER_PULSE } from '../../.
 import { solveElectrothermal, steadyJunctionC } from '../../../../shared/physics/driver/electrothermal.ts';
 import { simulatePulses } from '../../../../shared/physics/driver/simulate-pulses.ts';
 import { frameLossModel, simulateRail } from '../../../../shared/physics/driver/simulate-rail.ts';
+import { ThermalNetwork } from '../../../../shared/physics/thermal/network.ts';
 import type { DriverProfile } from '../../../../shared/schemas/driver.ts';
 
 // The simulations' input checks (each message names the argument, the rule and the value), their
@@ -189,5 +190,28 @@ describe('simulatePulses: limits and warnings word for word', () => {
     expect(sim.supply.meanCurrentA).toBe(0);
     expect(sim.pulse).toEqual({ count: 0, rfCyclesMin: 0, rfCyclesMean: 0, shorterThanRingUp: 0 });
     expect(sim.devices[0].traces).toBeUndefined();
+  });
+});
+
+describe('simulatePulses: first frame and a pulse of exactly 1 s', () => {
+  it('starts the first frame of the junction trace at the starting temperature', () => {
+    // From a hot start without pulses the junction only cools: its maximum over frame 0 is the start.
+    const warm = simulatePulses(D, COIL, train([0], [150e-6]), 150e-6);
+    const sim = simulatePulses(D, COIL, train([], []), 0.01, { traces: true, initial: warm.finalState });
+    const startC = 25 + ThermalNetwork.fromPath(D.devices[0].thermal).junctionRiseK(
+      ThermalNetwork.fromPath(D.devices[0].thermal).stateFromNodeRisesK(warm.finalState[0]),
+    );
+    // Float32 trace: tolerance 1e-5 relative.
+    expect(Math.abs(sim.devices[0].traces!.junctionC[0] / startC - 1)).toBeLessThan(1e-5);
+    expect(startC).toBeGreaterThan(sim.devices[0].traces!.junctionC[1]);
+  });
+
+  it('reaches T_amb + P·Zth(1 s) at the end of a 1 s pulse from rest', () => {
+    // Single-pulse use of the transient thermal impedance (NXP AN11261); P is the first pulse's loss,
+    // the mean loss over the 2 s run times 2 (one pulse of 1 s). Tolerance 1e-9 relative.
+    const sim = simulatePulses(D, COIL, train([0], [1]), 2);
+    const p = sim.devices[0].meanLossW * 2;
+    const net = ThermalNetwork.fromPath(D.devices[0].thermal);
+    expect(Math.abs((sim.devices[0].peakJunctionC - 25) / (p * net.zthKPerW(1)) - 1)).toBeLessThan(1e-9);
   });
 });
