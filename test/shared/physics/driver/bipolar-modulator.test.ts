@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { bjtBridgeLossParts, bjtSaturationWarning } from '../../../../shared/physics/driver/bjt.ts';
 import { emptyLossParts, modulatorLossParts, modulatorTaperV, railMoments } from '../../../../shared/physics/driver/losses.ts';
+import { frameOtherW, frameResistiveAt25W } from '../../../../shared/physics/driver/device-run.ts';
+import { frameLossModel } from '../../../../shared/physics/driver/simulate-rail.ts';
 import { deviceSwitching, tooSlowLabel, tooSlowWarning } from '../../../../shared/physics/driver/transition.ts';
 import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR } from '../../../../shared/demo/drivers.ts';
 import { deviceWarnings } from '../../../../shared/physics/driver/common.ts';
@@ -138,5 +140,20 @@ describe('deviceWarnings: bipolar saturation per role', () => {
     const linear: DriverProfile = { ...structuredClone(DEMO_DRIVER_LINEAR), fullRailCurrentA: 40, supplyCurrentLimitA: 50 };
     linear.devices[1] = { ...BJT, role: 'pass', riseTimeS: 0, fallTimeS: 0, storageTimeS: 0 };
     expect(deviceWarnings(linear, 120e3)).toEqual([]);
+  });
+});
+
+describe('frameLossModel of a modulator whose taper reaches below half rail', () => {
+  it('matches modulatorLossParts term by term where the switching share is below 1', () => {
+    // 330 ns at 2 MHz: taper V_s·0.66, so at E[v] = V_s/2 (one of the points the model is fitted at)
+    // the share is 0.5/0.66 = 0.76. Reference: the LossParts function itself at the same (m, s).
+    const slow: DriverProfile = { ...structuredClone(DEMO_DRIVER_BUCK), pwmFrequencyHz: 2e6, devices: [DEMO_DRIVER_BUCK.devices[0], BJT] };
+    const g = slow.fullRailCurrentA / slow.supplyVoltageV;
+    const model = frameLossModel(slow, 'modulator', 120e3);
+    for (const [m, s] of [[80, 80 * 160], [120, 120 * 120], [150, 150 * 155]]) {
+      const p = modulatorLossParts(BJT, 160, 2e6, g, m, s, emptyLossParts());
+      const want = p.resistiveAt25W + p.conductionFixedW + p.switchingW + p.capacitiveW;
+      expect(Math.abs(frameResistiveAt25W(model, m, s) + frameOtherW(model, m, s) - want)).toBeLessThan(1e-9 * want);
+    }
   });
 });

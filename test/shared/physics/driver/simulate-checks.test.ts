@@ -21,6 +21,7 @@ describe('solveElectrothermal and steadyJunctionC at the runaway edge', () => {
     const s = solveElectrothermal(100, 5, 0.01, 40, 1, 150);
     expect(s).toEqual({ powerW: 230, meanJunctionC: 270, runaway: true });
     expect(steadyJunctionC(100, 0, 0.01, 1, 25)).toBe(Infinity);
+    expect(steadyJunctionC(200, 0, 0.01, 1, 25)).toBe(Infinity);
   });
 
   it('does not call a mean junction exactly at Tj max a runaway', () => {
@@ -213,5 +214,50 @@ describe('simulatePulses: first frame and a pulse of exactly 1 s', () => {
     const p = sim.devices[0].meanLossW * 2;
     const net = ThermalNetwork.fromPath(D.devices[0].thermal);
     expect(Math.abs((sim.devices[0].peakJunctionC - 25) / (p * net.zthKPerW(1)) - 1)).toBeLessThan(1e-9);
+  });
+});
+
+describe('simulatePulses: the frame-grid traces against runs that end at each frame', () => {
+  it('gives per frame the peak junction, the end case and sink, the mean loss and current', () => {
+    // 1 ms frames over 8.5 ms (a last frame of half length); one pulse straddles the 5 ms frame edge.
+    // Reference: the same pulses cut at time t, simulated without traces up to t; its final state
+    // gives the temperatures at t (the update is exact, so cutting changes nothing before t; the
+    // demo IGBT's loss does not depend on temperature, so a cut pulse has the same power).
+    const starts = [0.0005, 0.0031, 0.0049, 0.0062, 0.0081];
+    const ons = [1e-4, 2e-4, 2e-4, 1.5e-4, 1e-4];
+    const durS = 0.0085;
+    const frameS = 1e-3;
+    const sim = simulatePulses(D, COIL, train(starts, ons), durS, { traces: true, frameS });
+    const tr = sim.devices[0].traces!;
+    const net = ThermalNetwork.fromPath(D.devices[0].thermal);
+    const at = (t: number) => {
+      const s: number[] = [];
+      const o: number[] = [];
+      starts.forEach((st, i) => {
+        if (st < t) {
+          s.push(st);
+          o.push(Math.min(ons[i], t - st));
+        }
+      });
+      const x = net.stateFromNodeRisesK(simulatePulses(D, COIL, train(s, o), t).finalState[0]);
+      return { j: 25 + net.junctionRiseK(x), c: 25 + net.caseRiseK(x), s: 25 + net.sinkRiseK(x) };
+    };
+    const powerW = (sim.devices[0].meanLossW * durS) / ons.reduce((a, b) => a + b, 0);
+    expect(tr.junctionC).toHaveLength(9);
+    for (let k = 0; k < 9; k++) {
+      const t0 = k * frameS;
+      const t1 = Math.min((k + 1) * frameS, durS);
+      const times = [t1, ...starts.map((s, i) => s + ons[i]).filter((e) => e > t0 && e <= t1)];
+      const peak = Math.max(...times.map((t) => at(t).j));
+      const end = at(t1);
+      let overlap = 0;
+      starts.forEach((s, i) => (overlap += Math.max(0, Math.min(t1, s + ons[i]) - Math.max(t0, s))));
+      // Float32 traces: tolerance 1e-5 relative (1e-6 W or A where the value is 0).
+      expect(Math.abs(tr.junctionC[k] / peak - 1)).toBeLessThan(1e-5);
+      expect(Math.abs(tr.caseC[k] / end.c - 1)).toBeLessThan(1e-5);
+      expect(Math.abs(tr.sinkC[k] / end.s - 1)).toBeLessThan(1e-5);
+      expect(Math.abs(tr.lossW[k] - (powerW * overlap) / (t1 - t0))).toBeLessThan(1e-5 * powerW);
+      expect(Math.abs(sim.supply.currentA![k] - (12 * overlap) / (t1 - t0))).toBeLessThan(1e-5 * 12);
+    }
   });
 });
