@@ -6,6 +6,7 @@ import { frameLossModel } from '../../../../shared/physics/driver/simulate-rail.
 import { deviceSwitching, tooSlowLabel, tooSlowWarning } from '../../../../shared/physics/driver/transition.ts';
 import { DEMO_DRIVER_BUCK, DEMO_DRIVER_LINEAR } from '../../../../shared/demo/drivers.ts';
 import { deviceWarnings } from '../../../../shared/physics/driver/common.ts';
+import { bridgeCurrentFactors } from '../../../../shared/physics/driver/currents.ts';
 import type { DriverDevice, DriverProfile } from '../../../../shared/schemas/driver.ts';
 
 // A bipolar buck modulator's loss term by term against hand values, the bipolar saturation warning
@@ -33,6 +34,9 @@ describe('bipolar buck modulator losses', () => {
   it('takes the storage time into the taper width of a BJT only', () => {
     expect(Math.abs(modulatorTaperV(BJT, 100, 20e3) - 0.66)).toBeLessThan(1e-12);
     expect(Math.abs(modulatorTaperV({ ...BJT, kind: 'igbt' }, 100, 20e3) - 0.26)).toBeLessThan(1e-12);
+    // An IGBT's turn-off delay (given as storageTimeS) adds no switching overlap: ½·100·0.1·50·130 ns·20 kHz = 0.65 W.
+    const igbt = { ...BJT, kind: 'igbt' as const, baseCurrentA: undefined };
+    expect(Math.abs(modulatorLossParts(igbt, 100, 20e3, 0.1, 50, 2500, emptyLossParts()).switchingW - 0.65)).toBeLessThan(1e-12);
   });
 
   it('gives the hand-worked parts for a fixed base current at half rail', () => {
@@ -105,7 +109,7 @@ describe('switching speed of each role', () => {
       tooSlow: false,
     });
     expect(deviceSwitching(withBjt(DEMO_DRIVER_BUCK), 'modulator', 300e3).switchingHz).toBeNull();
-    const pass = deviceSwitching(DEMO_DRIVER_LINEAR, 'pass', 300e3);
+    const pass = deviceSwitching({ ...DEMO_DRIVER_LINEAR, pwmFrequencyHz: 20e3 }, 'pass', 300e3);
     expect([pass.switchingHz, pass.transitionShare, pass.tooSlow]).toEqual([null, null, false]);
     expect(deviceSwitching(DEMO_DRIVER_LINEAR, 'bridge', 300e3).switchingHz).toBe(300e3);
     expect(() => deviceSwitching(DEMO_DRIVER_LINEAR, 'modulator', 300e3)).toThrow(new RangeError('deviceSwitching: the profile has no modulator device'));
@@ -155,5 +159,21 @@ describe('frameLossModel of a modulator whose taper reaches below half rail', ()
       const want = p.resistiveAt25W + p.conductionFixedW + p.switchingW + p.capacitiveW;
       expect(Math.abs(frameResistiveAt25W(model, m, s) + frameOtherW(model, m, s) - want)).toBeLessThan(1e-9 * want);
     }
+  });
+});
+
+describe('deviceWarnings: each role its own device', () => {
+  it("reads each role's own V_CE(sat) current, and skips a role the profile lacks", () => {
+    // Bridge stated at 5 A (peak 6.28 A: warned), modulator at 3 A (peak 4 A: warned); with the
+    // modulator stated at 5 A it is not.
+    const bridge = { ...BJT, role: 'bridge' as const, vceSatAtCurrentA: 5 };
+    const buck: DriverProfile = { ...structuredClone(DEMO_DRIVER_BUCK), devices: [bridge, BJT] };
+    expect(deviceWarnings(buck, 120e3)).toEqual([bjtSaturationWarning(bridge, 'bridge', 2 * Math.PI), bjtSaturationWarning(BJT, 'modulator', 4)]);
+    const noMod: DriverProfile = { ...structuredClone(DEMO_DRIVER_BUCK), devices: [bridge] };
+    expect(deviceWarnings(noMod, 120e3)).toEqual([bjtSaturationWarning(bridge, 'bridge', 2 * Math.PI)]);
+  });
+
+  it('rejects an unknown topology by name', () => {
+    expect(() => bridgeCurrentFactors('triple-bridge' as never)).toThrow(new RangeError('bridgeCurrentFactors: unknown topology triple-bridge'));
   });
 });
