@@ -51,21 +51,24 @@ function build(root, file) {
 }
 
 let installed = false;
+/** The bundle's entry points by request, once loaded; null when it could not be made (TypeBox then loads as before). */
+let bundled;
 
-/** Answers `require` of TypeBox's entry points from the one-file bundle (built on first use). */
-function install() {
-  if (installed) return;
-  installed = true;
+/** Loads (first building) the bundle and puts each entry point in require's cache; false if that failed. */
+function load() {
+  if (bundled !== undefined) return bundled !== null;
   let bundle;
   try {
     const { root, file } = bundlePath();
     if (!existsSync(file)) build(root, file);
     bundle = require(file);
   } catch {
-    return; // TypeBox loads module by module, as without this file
+    bundled = null;
+    return false;
   }
   // Each entry point as an ES module namespace seen from CommonJS (`__esModule`, so that a default
   // import takes its `default` export, as it would from the module itself).
+  bundled = {};
   for (const [spec, name] of Object.entries(ENTRIES)) {
     const key = `coilcue-bundled:${spec}`;
     const m = new Module(key);
@@ -74,10 +77,22 @@ function install() {
     m.exports = Object.assign({}, bundle[name]);
     Object.defineProperty(m.exports, '__esModule', { value: true });
     Module._cache[key] = m;
+    bundled[spec] = key;
   }
+  return true;
+}
+
+/**
+ * Answers `require` of TypeBox's entry points from the one-file bundle, loaded (and built, the
+ * first time) when TypeBox is first asked for: a command that never validates a profile (analyze)
+ * loads none of it.
+ */
+function install() {
+  if (installed) return;
+  installed = true;
   const resolve = Module._resolveFilename;
   Module._resolveFilename = function (request, ...rest) {
-    if (Object.prototype.hasOwnProperty.call(ENTRIES, request)) return `coilcue-bundled:${request}`;
+    if (Object.prototype.hasOwnProperty.call(ENTRIES, request) && load()) return bundled[request];
     return resolve.call(this, request, ...rest);
   };
 }
