@@ -5,7 +5,6 @@
  * MessagePort the task carries. Files are written under tmp/ and renamed to their final name
  * here, so the main thread writes a row only for a file that is complete.
  */
-import { writeFile } from 'node:fs/promises';
 import type { MessagePort } from 'node:worker_threads';
 import { zeroCrossingEvents } from '../../shared/plan/pulse-train.ts';
 import { planSettings } from '../../shared/plan/evaluate.ts';

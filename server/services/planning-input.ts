@@ -8,7 +8,7 @@
  * analyze command does not load the planner.
  */
 import { PITCH_HOP_S, PITCH_MAX_HZ } from '../../shared/analysis/tasks.ts';
-import { type ModulationChannel, modulationSource } from '../../shared/audio/clip.ts';
+import type { ModulationChannel } from '../../shared/audio/clip.ts';
 import type { PitchTrack } from '../../shared/dsp/pitch.ts';
 import { yinPitchTrack } from '../../shared/dsp/pitch.ts';
 import { type WelchSpectrum, welchPsd } from '../../shared/dsp/welch.ts';

@@ -15,7 +15,7 @@ import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/leve
 import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
 import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
 import { bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
-import { type DisplaySpectrogram, welchSpectrogram } from '../dsp/spectrogram.ts';
+import { welchSpectrogram } from '../dsp/spectrogram.ts';
 import { type TruePeakReport, channelTruePeakLinear, measureTruePeak } from '../dsp/true-peak.ts';
 import { ampToDb } from '../units.ts';
 import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './types.ts';

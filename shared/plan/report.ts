@@ -22,7 +22,6 @@ import { type DutyCycleFigures, dutyCycleFigures } from './duty-cycle.ts';
 import { limitLabel } from './limit-labels.ts';
 import { type LimitingNote, limitingNote } from './quality.ts';
 import { type IdleFigures, idleFigures, idleWarning } from './idle.ts';
-import { simulateSteady } from './steady.ts';
 
 export const GAIN_CONVENTION =
   'gain 0 dB: a full-scale sample (±1.0) swings a rail scheme’s rail over its whole range (0 to the supply, around a bias at half the supply) and takes a pulse scheme’s on-time to its maximum';
