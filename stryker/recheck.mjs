@@ -28,7 +28,9 @@ for (const [file, f] of Object.entries(report.files)) {
     const b = offset(m.location.end);
     writeFileSync(file, original.slice(0, a) + m.replacement + original.slice(b));
     try {
-      const r = spawnSync('npx', ['vitest', 'run', ...tests], { encoding: 'utf8', timeout: 120_000 });
+      // GNU timeout signals its whole process group, so vitest's worker processes go too (a mutant
+      // that loops forever would otherwise leave them spinning after npx is killed).
+      const r = spawnSync('timeout', ['-k', '5', '120', 'npx', 'vitest', 'run', ...tests], { encoding: 'utf8' });
       const killed = r.status !== 0;
       results.push({ file, line: m.location.start.line, mutator: m.mutatorName, replacement: m.replacement, killed });
       console.log(`${killed ? 'killed  ' : 'survived'} ${file}:${m.location.start.line}:${m.location.start.column} ${m.mutatorName} ${JSON.stringify(m.replacement)}`);
