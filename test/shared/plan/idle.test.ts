@@ -14,6 +14,13 @@ import { COIL, halfBridgeI2rW, linearDriver, mosfet } from './fixtures.ts';
 const G = 3 / 48; // A/V: the fixtures' linear driver, 3 A at a full 48 V rail
 const PASS_IDLE_W = (G * 48 * 48) / 4; // 36 W
 
+/** Bridge on 3 K/W; pass device on one cell (0.5 K/W, 4 ms) and a 100 J/K sink with 7 K/W to ambient. */
+const slowSinkDriver = () =>
+  linearDriver(
+    mosfet('bridge', { rKPerW: 1, tauS: 0.01, sinkToAmbientKPerW: 2 }),
+    mosfet('pass', { rKPerW: 0.5, tauS: 0.004, sinkToAmbientKPerW: 7, sinkHeatCapacityJPerK: 100 }),
+  );
+
 /**
  * Rise of the junction over ambient of a two-node ladder from cold: P into node 1 (C₁), R₁ to node
  * 2 (C₂), R₂ to ambient. x' = A·x + b with A = [[−1/(R₁C₁), 1/(R₁C₁)], [1/(R₁C₂), −(1/R₁ + 1/R₂)/C₂]],
@@ -55,9 +62,7 @@ describe('idleFigures', () => {
     // crossing of 125 °C found by bisection: ≈ 275.57 s, about −700·ln(1 − 82/252) = 275.54 s plus
     // the junction cell's own share of the heat. The model reads it off 0.5 s frames (float32
     // temperatures, linear interpolation): within 0.005 s.
-    const bridge = mosfet('bridge', { rKPerW: 1, tauS: 0.01, sinkToAmbientKPerW: 2 });
-    const pass = mosfet('pass', { rKPerW: 0.5, tauS: 0.004, sinkToAmbientKPerW: 7, sinkHeatCapacityJPerK: 100 });
-    const d = linearDriver(bridge, pass);
+    const d = slowSinkDriver();
     const [b, p] = idleFigures(d, COIL, planSettings(d));
     expect(p.role).toBe('pass');
     expect(p.railV).toBe(24);
@@ -134,9 +139,7 @@ describe('idleFigures', () => {
 
 describe('idleWarning', () => {
   it('words the hot device with its figures, and says nothing of a cool one', () => {
-    const bridge = mosfet('bridge', { rKPerW: 1, tauS: 0.01, sinkToAmbientKPerW: 2 });
-    const pass = mosfet('pass', { rKPerW: 0.5, tauS: 0.004, sinkToAmbientKPerW: 7, sinkHeatCapacityJPerK: 100 });
-    const d = linearDriver(bridge, pass);
+    const d = slowSinkDriver();
     const [b, p] = idleFigures(d, COIL, planSettings(d));
     expect(idleWarning(b)).toBe('');
     expect(idleWarning(p)).toBe(

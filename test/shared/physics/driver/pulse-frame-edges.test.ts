@@ -5,23 +5,13 @@
  */
 import { describe, expect, it } from 'vitest';
 import { DEMO_DRIVER_PULSE } from '../../../../shared/demo/drivers.ts';
-import { bridgeLossParts, totalLossW } from '../../../../shared/physics/driver/losses.ts';
 import { simulatePulses } from '../../../../shared/physics/driver/simulate-pulses.ts';
+import { PULSE_COIL, pulseLossW } from './pulse-fixtures.ts';
 
-const COIL = { resonanceHz: 120e3, qualityFactor: 15 };
+const COIL = PULSE_COIL;
 const D = DEMO_DRIVER_PULSE;
 const FRAME_S = 1e-3;
-/** Loss per bridge switch during a pulse (IGBT: no temperature dependence, so constant). */
-const PULSE_LOSS_W = totalLossW(
-  bridgeLossParts(D.devices[0], D.topology, COIL.resonanceHz, {
-    meanCurrentA: D.fullRailCurrentA,
-    meanSquareCurrentA2: D.fullRailCurrentA ** 2,
-    meanPowerW: D.supplyVoltageV * D.fullRailCurrentA,
-    meanSquareV2: D.supplyVoltageV ** 2,
-  }),
-  0,
-  25,
-);
+const PULSE_LOSS_W = pulseLossW();
 
 describe('simulatePulses: the frame grid at its edges', () => {
   it('counts a pulse in the sliver past the last whole frame in the last frame', () => {

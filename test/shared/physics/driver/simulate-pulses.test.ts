@@ -5,22 +5,11 @@ import { simulatePulses } from '../../../../shared/physics/driver/simulate-pulse
 import { fosterPeriodicPeakKPerW } from '../../../../shared/physics/thermal/foster.ts';
 import { ThermalNetwork } from '../../../../shared/physics/thermal/network.ts';
 import type { DriverProfile } from '../../../../shared/schemas/driver.ts';
+import { PULSE_COIL, pulseLossW } from './pulse-fixtures.ts';
 
-const COIL = { resonanceHz: 120e3, qualityFactor: 15 };
+const COIL = PULSE_COIL;
 const D = DEMO_DRIVER_PULSE;
 const clone = (p: DriverProfile): DriverProfile => structuredClone(p);
-/** Loss per bridge switch during a pulse of the demo (IGBT: no temperature dependence). */
-const pulseLossW = (d: DriverProfile = D) =>
-  totalLossW(
-    bridgeLossParts(d.devices[0], d.topology, COIL.resonanceHz, {
-      meanCurrentA: d.fullRailCurrentA,
-      meanSquareCurrentA2: d.fullRailCurrentA ** 2,
-      meanPowerW: d.supplyVoltageV * d.fullRailCurrentA,
-      meanSquareV2: d.supplyVoltageV ** 2,
-    }),
-    0,
-    25,
-  );
 const train = (n: number, periodS: number, onS: number, t0 = 0) => ({
   startS: Float64Array.from({ length: n }, (_, i) => t0 + i * periodS),
   onS: new Float64Array(n).fill(onS),
