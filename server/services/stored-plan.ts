@@ -191,7 +191,7 @@ export function planStoredSet(items: SetPlanItem[], coil: CoilProfile, driver: D
     t += clips[k].durationS;
     state = e.sim.finalState;
     if (it.gapAfterS > 0) {
-      const idle = simulateSteady(driver, c, { durationS: it.gapAfterS, frameS: GAP_FRAME_S, railV: driver.supplyVoltageV / 2, pulseOn: false, initial: state, ambientC: s.ambientC });
+      const idle = simulateSteady(driver, c, { durationS: it.gapAfterS, frameS: GAP_FRAME_S, railV: driver.supplyVoltageV / 2, initial: state, ambientC: s.ambientC });
       pieces.push({ frameS: it.gapAfterS / Math.max(1, Math.ceil(it.gapAfterS / GAP_FRAME_S)), traces: new Map(idle.devices.map((d) => [d.role, d.traces?.junctionC ?? new Float32Array(0)])) });
       gaps.push({ fromS: t, toS: t + it.gapAfterS });
       t += it.gapAfterS;

@@ -49,7 +49,7 @@ export function idleFigures(driver: DriverProfile, coil: CoilAtResonance, settin
   let traces: DeviceTraces[] | null = null;
   return roles.map((role, i) => {
     const dev = driver.devices.find((d) => d.role === role)!;
-    const model = frameLossModel(driver, role === 'bridge' ? 'bridge' : role, coil.resonanceHz);
+    const model = frameLossModel(driver, role, coil.resonanceHz);
     const m = railV;
     const s = railV * railV;
     const a = model.rS * s + model.r3 * railThirdMomentBoundV3(m, s, vs);
@@ -62,7 +62,7 @@ export function idleFigures(driver: DriverProfile, coil: CoilAtResonance, settin
     const limitC = dev.tjMaxC - settings.marginK;
     let reachesLimitAfterS: number | null = null;
     if (tj > limitC) {
-      traces ??= simulateSteady(driver, coil, { durationS: MAX_IDLE_SEARCH_S, frameS: 0.5, railV, pulseOn: false, ambientC: settings.ambientC })
+      traces ??= simulateSteady(driver, coil, { durationS: MAX_IDLE_SEARCH_S, frameS: 0.5, railV, ambientC: settings.ambientC })
         .devices.map((d) => d.traces as DeviceTraces);
       const j = traces[i].junctionC;
       for (let k = 0; k < j.length; k++) {

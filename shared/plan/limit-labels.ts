@@ -56,6 +56,6 @@ export function limitText(l: { limit: LimitName; role: DeviceRole | null; value:
   if (l.limit === 'switching-speed') {
     return `${limitLabel(l)}: transitions ${(l.value * 100).toFixed(1)} % of each cycle (at most ${(l.allowed * 100).toFixed(0)} %)`;
   }
-  const allowed = limitValueText(l.allowed, l.unit).replace(/ of .*$/, '');
+  const allowed = limitValueText(l.allowed, l.unit);
   return `${limitLabel(l)}: ${limitValueText(l.value, l.unit, l.limit)}, allowed ${allowed}`;
 }

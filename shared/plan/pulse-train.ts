@@ -186,7 +186,10 @@ export function pitchLockedEvents(
       remainingCycles = 0;
       continue;
     }
-    const t1 = Math.min(t0 + hopS, durationS);
+    // The hop's own end, not t0 + hopS: a first hop that starts before the clip is cut at 0, and
+    // stretching it to a whole hop would overlap the next one and fire its cycles twice.
+    const t1 = Math.min(firstS + (j + 1) * hopS, durationS);
+    if (!(t1 > t0)) continue;
     let m = 0; // events are at t0 + (remainingCycles + m)/f: no running-sum drift within a hop
     for (let t = t0 + remainingCycles / f; t < t1; t = t0 + (remainingCycles + ++m) / f) {
       times.push(t);

@@ -81,7 +81,7 @@ export interface SetResult {
 
 /** Idle (silence) simulation of `durationS` from `initial`, on frames of `frameS`, with traces. */
 function idle(driver: DriverProfile, coil: CoilAtResonance, initial: ThermalState[] | undefined, durationS: number, ambientC: number, frameS: number): DriverSimulation {
-  return simulateSteady(driver, coil, { durationS, frameS, railV: driver.supplyVoltageV / 2, pulseOn: false, initial, ambientC });
+  return simulateSteady(driver, coil, { durationS, frameS, railV: driver.supplyVoltageV / 2, initial, ambientC });
 }
 
 /**

@@ -1,7 +1,7 @@
 /**
- * The driver held in one steady state for a while: a rail scheme at a constant rail voltage, or a
- * pulse scheme either on for the whole time or idle. Used for full-operation losses (the duty
- * budget) and for idle gaps between the clips of a set.
+ * The driver idling for a while, supply on and no music: a rail scheme at a constant rail voltage
+ * (half the supply, its bias), a pulse scheme sending no pulses. Used for the idle gaps between the
+ * clips of a set and for how long a rig may idle (./idle.ts).
  */
 import { simulatePulses } from '../physics/driver/simulate-pulses.ts';
 import { simulateRail } from '../physics/driver/simulate-rail.ts';
@@ -14,8 +14,6 @@ export interface SteadyDrive {
   frameS: number;
   /** Rail schemes: the constant rail voltage, V. */
   railV: number;
-  /** Pulse scheme: on for the whole duration (true) or idle (false). */
-  pulseOn: boolean;
   initial?: ThermalState[];
   ambientC: number;
 }
@@ -26,8 +24,8 @@ export function simulateSteady(driver: DriverProfile, coil: CoilAtResonance, s: 
   const dt = s.durationS / n;
   const opts = { initial: s.initial, ambientC: s.ambientC, traces: true, frameS: dt };
   if (driver.scheme === 'pulse') {
-    const train = s.pulseOn ? { startS: Float64Array.of(0), onS: Float64Array.of(s.durationS) } : { startS: new Float64Array(0), onS: new Float64Array(0) };
-    return simulatePulses(driver, coil, train, s.durationS, opts);
+    // No pulses: a pulse driver idles cold.
+    return simulatePulses(driver, coil, { startS: new Float64Array(0), onS: new Float64Array(0) }, s.durationS, opts);
   }
   return simulateRail(driver, coil, { frameS: dt, meanV: new Float64Array(n).fill(s.railV), meanSquareV2: new Float64Array(n).fill(s.railV * s.railV) }, opts);
 }

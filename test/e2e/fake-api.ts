@@ -403,7 +403,7 @@ export async function buildFakeApi(opts: { dataDir?: string; serveClient?: boole
         t0 += p.plan.durationS;
         const gap = s.items[i].gapAfterS;
         if (gap > 0) {
-          const idle = simulateSteady(driver, coil, { durationS: gap, frameS: Math.max(0.1, gap / 100), railV: driver.supplyVoltageV / 2, pulseOn: false, initial: state, ambientC: settings.ambientC });
+          const idle = simulateSteady(driver, coil, { durationS: gap, frameS: Math.max(0.1, gap / 100), railV: driver.supplyVoltageV / 2, initial: state, ambientC: settings.ambientC });
           const m = idle.devices[0].traces!.junctionC.length;
           for (let k = 0; k < m; k++) {
             timeS.push(t0 + ((k + 1) / m) * gap);

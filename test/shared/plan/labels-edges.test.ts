@@ -48,6 +48,11 @@ describe('limitLabel and limitValueText: other limits', () => {
     expect(limitLabel({ limit: 'some-new-limit' as LimitName, role: null })).toBe('some-new-limit');
   });
 
+  it('names a frequency only for the switching-speed limit: another limit that carries one keeps its plain name', () => {
+    expect(limitLabel({ limit: 'junction-temperature', role: 'bridge', frequencyHz: 310e3 })).toBe('junction temperature (bridge)');
+    expect(limitLabel({ limit: 'junction-temperature', role: 'bridge', frequencyHz: 310e3, value: 150, allowed: 140 })).toBe('junction temperature (bridge)');
+  });
+
   it('writes a value in its unit, a dash when it is not finite, and a share with its base only when the limit is named', () => {
     expect(limitValueText(Number.POSITIVE_INFINITY, 'C')).toBe('—');
     expect(limitValueText(Number.NaN, 'A')).toBe('—');
@@ -164,5 +169,41 @@ describe('limitingNote at its edges', () => {
     const n = limitingNote(hist, 1.05, 0);
     expect(n.heavy).toBe(true);
     expect(n.gainDbWithoutHeavyLimiting).toBe(0.9);
+  });
+
+  it('estimates nothing for a clip without samples (no levels to read), and gives no gain when the aim falls on silence', () => {
+    const empty = magnitudeHistogram(new Float32Array(0));
+    expect(limitingNote(empty, 6, 0)).toMatchObject({ deepShare: 0, basis: 'estimated', heavy: false, note: null });
+    // A silent clip with a measured heavy share: the aim, the (1 − 1 %/spread) quantile, is 0 (every
+    // sample is), and no gain brings a level of 0 under the ceiling's deep level: no suggestion.
+    const silent = magnitudeHistogram(new Float32Array(1000));
+    const n = limitingNote(silent, 6, 0, 0.05);
+    expect(n.heavy).toBe(true);
+    expect(n.gainDbWithoutHeavyLimiting).toBeNull();
+  });
+
+  it("moves the suggestion from one level step to the next as the limiter's spread moves the aimed quantile past it", () => {
+    // Three levels, chosen so the quantiles are far apart (hand values): 0.6 % of samples at 1.0,
+    // 0.6 % at 0.5, the rest at 0.1. At +12 dB (×3.98) the deep level 10^(1/20)/3.98 = 0.282 lies
+    // below 0.5 and 1.0: 1.2 % of samples are cut deeply, heavy (> 1 %). Estimate alone (spread 1):
+    // the 99th percentile is 0.5 (98.8 % of samples are ≤ 0.1, 99.4 % ≤ 0.5), so the suggestion is
+    // 20·log10(10^(1/20)/0.5) = 7.02 dB → 7.0. A render that cut twice the estimate (spread 2) aims
+    // at 0.5 %: the 99.5th percentile is 1.0, 1 dB → 0.9 (floored to 0.1 dB below 20·log10(1.122) =
+    // 1.0 minus rounding). A render that cut fewer than estimated (1.1 %, still heavy): the spread
+    // stays 1, and so does the suggestion.
+    const n = 100_000;
+    const x = new Float32Array(n).fill(0.1);
+    x.fill(1, 0, 600);
+    x.fill(0.5, 600, 1200);
+    const hist = magnitudeHistogram(x);
+    const est = limitingNote(hist, 12, 0);
+    expect(est.deepShare).toBeCloseTo(0.012, 6);
+    expect(est.gainDbWithoutHeavyLimiting).toBeCloseTo(ampToDb(dbToAmp(1) / 0.5), 0);
+    expect(Math.abs(est.gainDbWithoutHeavyLimiting! - 7.0)).toBeLessThanOrEqual(0.1);
+    const twice = limitingNote(hist, 12, 0, 0.024);
+    expect(Math.abs(twice.gainDbWithoutHeavyLimiting! - 1.0)).toBeLessThanOrEqual(0.1);
+    const fewer = limitingNote(hist, 12, 0, 0.011);
+    expect(fewer.heavy).toBe(true);
+    expect(fewer.gainDbWithoutHeavyLimiting).toBe(est.gainDbWithoutHeavyLimiting);
   });
 });

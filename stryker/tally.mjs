@@ -1,0 +1,57 @@
+// The score of a folder after re-checks: a Stryker JSON report (stryker/report-<folder>.json) with
+// the mutants that re-check logs (recheck.mjs output) print as killed counted as detected, and the
+// mutants on code removed or rewritten since the run left out of the count (listed below with the
+// reason). Usage: node stryker/tally.mjs plan stryker/recheck-plan.log [more logs]; LEFT=1 also
+// lists every mutant still surviving.
+import { readFileSync } from 'node:fs';
+
+/** Code changed since the run, per folder: [file, line, first column, last column, why]. */
+const CHANGED = {
+  plan: [
+    ['shared/plan/idle.ts', 52, 42, 80, "dead code removed: role === 'bridge' ? 'bridge' : role"],
+    ['shared/plan/limit-labels.ts', 59, 50, 200, 'dead code removed: a replace on a text that never carries a base'],
+    ['shared/plan/idle.ts', 65, 100, 115, 'simulateSteady lost its pulseOn option (every caller set it false)'],
+    ['shared/plan/steady.ts', 29, 1, 200, 'simulateSteady lost its pulseOn option (every caller set it false)'],
+    ['shared/plan/pulse-train.ts', 189, 1, 200, 'bug fixed: a first hop before 0 s ends where it ends'],
+  ],
+};
+
+const [name, ...logs] = process.argv.slice(2);
+if (!name) {
+  console.error('usage: node stryker/tally.mjs <folder> <recheck logs…>');
+  process.exit(2);
+}
+const report = JSON.parse(readFileSync(new URL(`./report-${name}.json`, import.meta.url), 'utf8'));
+const norm = (s) => s.replace(/\s+/g, ' ');
+const killed = new Set();
+for (const log of logs) {
+  for (const line of readFileSync(log, 'utf8').split('\n')) {
+    if (line.startsWith('killed')) killed.add(norm(line.slice('killed'.length).trim()));
+  }
+}
+const changed = CHANGED[name] ?? [];
+let detected = 0;
+let valid = 0;
+let gone = 0;
+for (const [file, f] of Object.entries(report.files)) {
+  let d = 0;
+  let v = 0;
+  const left = [];
+  for (const m of f.mutants) {
+    if (['CompileError', 'RuntimeError', 'Ignored'].includes(m.status)) continue;
+    const { line, column } = m.location.start;
+    if (changed.some(([cf, cl, c0, c1]) => cf === file && cl === line && column >= c0 && column <= c1)) {
+      gone++;
+      continue;
+    }
+    v++;
+    const key = norm(`${file}:${line}:${column} ${m.mutatorName} ${JSON.stringify(m.replacement)}`);
+    if (m.status === 'Killed' || m.status === 'Timeout' || killed.has(key)) d++;
+    else left.push(key);
+  }
+  detected += d;
+  valid += v;
+  console.log(`${file}: ${d}/${v} = ${((100 * d) / Math.max(1, v)).toFixed(1)} %, ${left.length} left`);
+  if (process.env.LEFT) for (const k of left) console.log(`  left ${k}`);
+}
+console.log(`total: ${detected}/${valid} = ${((100 * detected) / Math.max(1, valid)).toFixed(1)} % (${gone} mutants on changed code left out)`);
