@@ -1,7 +1,7 @@
 // The score of a folder after re-checks: a Stryker JSON report (stryker/report-<folder>.json) with
 // the mutants that re-check logs (recheck.mjs output) print as killed counted as detected, and the
 // mutants on code removed or rewritten since the run left out of the count (listed below with the
-// reason). Usage: node stryker/tally.mjs plan stryker/recheck-plan.log [more logs]; LEFT=1 also
+// reason). Usage: node stryker/tally.mjs plan stryker/recheck-plan.txt [more logs]; LEFT=1 also
 // lists every mutant still surviving.
 import { readFileSync } from 'node:fs';
 
