@@ -135,6 +135,10 @@ describe('pitchLockedEvents at its edges', () => {
     // A hop wholly before the clip makes no pulses, and one wholly after its end none either.
     const early = pitchLockedEvents(Float32Array.of(100, 100, 100), 0.01, peak, 0.001, 0.015, -0.01);
     expect(Array.from(early.timeS)).toEqual([0, 0.01].map((t) => expect.closeTo(t, 12)));
+    // A hop that ends before 0 s carries no phase into the next: from −15 ms, hop 0 is [−15, −5) ms
+    // (skipped), hop 1 [−5, 5) ms cut to [0, 5) (event at 0), hop 2 [5, 15) ms (event at 10).
+    const before = pitchLockedEvents(Float32Array.of(100, 100, 100), 0.01, peak, 0.001, 1, -0.015);
+    expect(Array.from(before.timeS)).toEqual([0, 0.01].map((t) => expect.closeTo(t, 12)));
   });
 });
 
