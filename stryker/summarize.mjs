@@ -2,6 +2,7 @@
 // of surviving and no-coverage mutants with their place and replacement: the material for the
 // "equivalent survivors" list in stryker/README.md. Usage: node stryker/summarize.mjs plan
 import { readFileSync } from 'node:fs';
+import { isDetected, isValid, scoreText } from './score.mjs';
 
 const name = process.argv[2] ?? 'plan';
 const report = JSON.parse(readFileSync(new URL(`./report-${name}.json`, import.meta.url), 'utf8'));
@@ -10,17 +11,15 @@ let total = 0;
 for (const [file, f] of Object.entries(report.files)) {
   const counts = {};
   for (const m of f.mutants) counts[m.status] = (counts[m.status] ?? 0) + 1;
-  // Mutation score as Stryker defines it: (killed + timeout) / (all valid mutants, i.e. without
-  // compile errors and ignored ones).
-  const detected = (counts.Killed ?? 0) + (counts.Timeout ?? 0);
-  const valid = f.mutants.filter((m) => !['CompileError', 'RuntimeError', 'Ignored'].includes(m.status)).length;
+  const detected = f.mutants.filter(isDetected).length;
+  const valid = f.mutants.filter(isValid).length;
   killed += detected;
   total += valid;
-  console.log(`${file}: ${detected}/${valid} = ${((100 * detected) / Math.max(1, valid)).toFixed(1)} %  ${JSON.stringify(counts)}`);
+  console.log(`${file}: ${scoreText(detected, valid)}  ${JSON.stringify(counts)}`);
   const lines = f.source.split('\n');
   for (const m of f.mutants.filter((x) => x.status === 'Survived' || x.status === 'NoCoverage')) {
     const l = m.location.start.line;
     console.log(`  ${m.status} ${file}:${l}:${m.location.start.column} ${m.mutatorName}: ${JSON.stringify(m.replacement ?? '')}  | ${lines[l - 1].trim().slice(0, 110)}`);
   }
 }
-console.log(`total: ${killed}/${total} = ${((100 * killed) / Math.max(1, total)).toFixed(1)} %`);
+console.log(`total: ${scoreText(killed, total)}`);

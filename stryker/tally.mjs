@@ -6,6 +6,7 @@
 // stryker/tally.mjs plan stryker/recheck-plan.txt [more logs]; LEFT=1 also lists every mutant still
 // surviving.
 import { readFileSync } from 'node:fs';
+import { isDetected, isValid, scoreText } from './score.mjs';
 
 /** Code changed since the run, per folder: [file, line, first column, last column, why]. */
 const CHANGED = {
@@ -44,7 +45,7 @@ for (const [file, f] of Object.entries(report.files)) {
   let v = 0;
   const left = [];
   for (const m of f.mutants) {
-    if (['CompileError', 'RuntimeError', 'Ignored'].includes(m.status)) continue;
+    if (!isValid(m)) continue;
     const { line, column } = m.location.start;
     if (changed.some(([cf, cl, c0, c1]) => cf === file && cl === line && column >= c0 && column <= c1)) {
       gone++;
@@ -52,12 +53,12 @@ for (const [file, f] of Object.entries(report.files)) {
     }
     v++;
     const key = norm(`${file}:${line}:${column} ${m.mutatorName} ${JSON.stringify(m.replacement)}`);
-    if (m.status === 'Killed' || m.status === 'Timeout' || killed.has(key)) d++;
+    if (isDetected(m) || killed.has(key)) d++;
     else left.push(key);
   }
   detected += d;
   valid += v;
-  console.log(`${file}: ${d}/${v} = ${((100 * d) / Math.max(1, v)).toFixed(1)} %, ${left.length} left`);
+  console.log(`${file}: ${scoreText(d, v)}, ${left.length} left`);
   if (process.env.LEFT) for (const k of left) console.log(`  left ${k}`);
 }
-console.log(`total: ${detected}/${valid} = ${((100 * detected) / Math.max(1, valid)).toFixed(1)} % (${gone} mutants on changed code left out)`);
+console.log(`total: ${scoreText(detected, valid)} (${gone} mutants on changed code left out)`);
