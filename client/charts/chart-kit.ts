@@ -151,8 +151,12 @@ export abstract class UplotElement extends LitElement {
   }
 }
 
-/** A vertical line at x = value with a label, drawn after the series. */
-export function markerLine(xOf: () => number | null, label: () => string, colourVar = '--c-vermillion'): uPlot.Plugin {
+/**
+ * A vertical line at x = value with a label, drawn after the series. `labels` gives the label's
+ * wordings, longest first: the first that fits beside the line (right of it, else left) is drawn;
+ * on a narrow plot where none fits, the shortest, kept inside the plot.
+ */
+export function markerLine(xOf: () => number | null, labels: () => string[], colourVar = '--c-vermillion'): uPlot.Plugin {
   return {
     hooks: {
       draw: (u: uPlot) => {
@@ -172,9 +176,22 @@ export function markerLine(xOf: () => number | null, label: () => string, colour
         ctx.setLineDash([]);
         ctx.fillStyle = cssVar('--fg');
         ctx.font = `${12 * devicePixelRatio}px system-ui, sans-serif`;
-        const text = label();
-        const w = ctx.measureText(text).width;
-        const tx = px + 6 * devicePixelRatio + w > u.bbox.left + u.bbox.width ? px - 6 * devicePixelRatio - w : px + 6 * devicePixelRatio;
+        // uPlot leaves the alignment of its last axis labels on the context.
+        ctx.textAlign = 'left';
+        const gap = 6 * devicePixelRatio;
+        const left = u.bbox.left + 2 * devicePixelRatio;
+        const right = u.bbox.left + u.bbox.width;
+        const options = labels();
+        let text = options[options.length - 1] ?? '';
+        let tx = Math.max(left, Math.min(px + gap, right - ctx.measureText(text).width));
+        for (const t of options) {
+          const w = ctx.measureText(t).width;
+          const at = px + gap + w <= right ? px + gap : px - gap - w >= left ? px - gap - w : null;
+          if (at !== null) {
+            [text, tx] = [t, at];
+            break;
+          }
+        }
         ctx.fillText(text, tx, u.bbox.top + 14 * devicePixelRatio);
         ctx.restore();
       },

@@ -1,5 +1,6 @@
 import { html } from 'lit';
 import type uPlot from 'uplot';
+import { formatSi } from '../../shared/display/format.ts';
 import { UplotElement, axis, logSplits, logTickValues, markerLine, seriesColour, siShort } from '../charts/chart-kit.ts';
 
 /**
@@ -31,7 +32,7 @@ export class SpectrumChart extends UplotElement {
 
   override render() {
     return html`<figure class="chart">
-      <figcaption>Spectrum of the modulation source${this.cornerHz ? html` — modulation corner ${siShort(this.cornerHz)}Hz marked` : ''}</figcaption>
+      <figcaption>Spectrum of the modulation source${this.cornerHz ? html` — modulation corner ${formatSi(this.cornerHz, 'Hz')} marked` : ''}</figcaption>
       <div class="plot"></div>
     </figure>`;
   }
@@ -54,7 +55,7 @@ export class SpectrumChart extends UplotElement {
       scales: { x: { time: false, distr: 3 } },
       axes: [axis('frequency', 'Hz', { splits: logSplits, values: logTickValues }), axis('power', 'dB re full scale', { size: 60 })],
       series: [{ label: 'frequency (Hz)', value: (_u, v) => (v == null ? '—' : `${siShort(v)}Hz`) }, { label: 'power', stroke: seriesColour(0), width: 1.5 }],
-      plugins: [markerLine(() => this.cornerHz, () => `modulation corner ${siShort(this.cornerHz ?? 0)}Hz`)],
+      plugins: [markerLine(() => this.cornerHz, () => [`modulation corner ${formatSi(this.cornerHz, 'Hz')}`, formatSi(this.cornerHz, 'Hz')])],
     };
   }
 }
