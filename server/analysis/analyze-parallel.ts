@@ -38,6 +38,7 @@ import {
   analyzeClip,
   combineAnalysis,
   resolveAnalyzeSettings,
+  shapeOf,
 } from '../../shared/analysis/analyze-clip.ts';
 import {
   type AnalysisTask,
@@ -275,5 +276,5 @@ async function analyzeShared(
   opts.onSource?.(source);
   const o = outputs as Required<TaskOutputs>;
   const part = channelFigures(s, o.levels, o['true peak'], o.loudness, outputs['source levels'], o.frames);
-  return combineAnalysis(clip, s, part, { ...o.spectrum, pitch: o.pitch });
+  return combineAnalysis(shapeOf(clip), s, part, { ...o.spectrum, pitch: o.pitch });
 }

@@ -15,12 +15,12 @@
  * spectrum, spectrogram, pitch), which analyzeClip runs in order on one thread. On the server,
  * server/analysis/analyze-parallel.ts runs the same tasks on two threads for the same result.
  */
-import { type AudioClip, clipDurationS, modulationSource } from '../audio/clip.ts';
+import { type AudioClip, modulationSource } from '../audio/clip.ts';
 import { DEFAULT_BANDS } from '../dsp/spectral-features.ts';
 import { channelFigures, runChannelTask, runSourceTask, sourceIsTheClip } from './tasks.ts';
-import type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, SpectrumFigures } from './types.ts';
+import type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, ClipShape, SpectrumFigures } from './types.ts';
 
-export type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, LevelFigures, SpectrumFigures } from './types.ts';
+export type { AnalyzeOptions, AnalyzeSettings, ChannelFigures, ClipAnalysis, ClipShape, LevelFigures, SpectrumFigures } from './types.ts';
 
 /** Stages of the channel part, in the order analyzeClip runs them. */
 export const CHANNEL_STAGES = ['levels', 'true peak', 'loudness', 'frames'] as const;
@@ -35,11 +35,27 @@ const STAGES = [...CHANNEL_STAGES, ...SPECTRUM_STAGES] as const;
  * @example resolveAnalyzeSettings(clip).frameS // 0.001
  */
 export function resolveAnalyzeSettings(clip: AudioClip, opts: AnalyzeOptions = {}): AnalyzeSettings {
-  const { channels } = clip;
-  if (channels.length === 0) throw new RangeError('analyzeClip: clip has no channels');
-  if (channels[0].length === 0) throw new RangeError('analyzeClip: clip has no samples');
+  return settingsForShape(shapeOf(clip), opts);
+}
+
+/** The shape of a clip (its length, channels and rate). @example shapeOf(clip).sampleCount */
+export const shapeOf = (clip: AudioClip): ClipShape => ({
+  sampleCount: clip.channels.length === 0 ? 0 : clip.channels[0].length,
+  channelCount: clip.channels.length,
+  sampleRate: clip.sampleRate,
+});
+
+/**
+ * {@link resolveAnalyzeSettings} for a clip known by its shape (a file about to be decoded block by
+ * block): the same defaults and the same RangeErrors.
+ *
+ * @example settingsForShape({ sampleCount: 44100, channelCount: 2, sampleRate: 44100 }).fftSize // 4096
+ */
+export function settingsForShape(shape: ClipShape, opts: AnalyzeOptions = {}): AnalyzeSettings {
+  if (shape.channelCount === 0) throw new RangeError('analyzeClip: clip has no channels');
+  if (shape.sampleCount === 0) throw new RangeError('analyzeClip: clip has no samples');
   const channel = opts.channel ?? 'mix';
-  if (channel === 'right' && channels.length < 2) {
+  if (channel === 'right' && shape.channelCount < 2) {
     throw new RangeError('analyzeClip: channel "right" asked of a mono clip');
   }
   return {
@@ -105,15 +121,16 @@ export function analyzeSpectrumPart(
 }
 
 /**
- * Puts the two parts together into a ClipAnalysis (the object analyzeClip returns).
- * @example combineAnalysis(clip, s, analyzeChannelPart(clip, src, s), analyzeSpectrumPart(src, fs, s))
+ * Puts the two parts together into a ClipAnalysis (the object analyzeClip returns), for a clip of
+ * the given shape.
+ * @example combineAnalysis(shapeOf(clip), s, analyzeChannelPart(clip, src, s), analyzeSpectrumPart(src, fs, s))
  */
-export function combineAnalysis(clip: AudioClip, s: AnalyzeSettings, part: ChannelFigures, spectrum: SpectrumFigures): ClipAnalysis {
+export function combineAnalysis(shape: ClipShape, s: AnalyzeSettings, part: ChannelFigures, spectrum: SpectrumFigures): ClipAnalysis {
   return {
-    sampleRate: clip.sampleRate,
-    channels: clip.channels.length,
-    sampleCount: clip.channels[0].length,
-    durationS: clipDurationS(clip),
+    sampleRate: shape.sampleRate,
+    channels: shape.channelCount,
+    sampleCount: shape.sampleCount,
+    durationS: shape.sampleCount / shape.sampleRate,
     modulationChannel: s.channel,
     level: part.level,
     loudness: part.loudness,
@@ -141,5 +158,5 @@ export function analyzeClip(clip: AudioClip, opts: AnalyzeOptions = {}): ClipAna
   const part = analyzeChannelPart(clip, source, s, progress);
   const spectrum = analyzeSpectrumPart(source, clip.sampleRate, s, progress);
   progress();
-  return combineAnalysis(clip, s, part, spectrum);
+  return combineAnalysis(shapeOf(clip), s, part, spectrum);
 }

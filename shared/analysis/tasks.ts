@@ -13,9 +13,10 @@ import type { FrameStats } from '../dsp/frame-stats.ts';
 import type { MagnitudeHistogram } from '../dsp/histogram.ts';
 import { type ChannelLevels, type LevelReport, measureLevels } from '../dsp/level.ts';
 import { type LoudnessReport, measureLoudness } from '../dsp/loudness.ts';
-import { type PitchTrack, yinPitchTrack } from '../dsp/pitch.ts';
-import { bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
-import { welchSpectrogram } from '../dsp/spectrogram.ts';
+import { type PitchTrack, type YinOptions, yinPitchTrack } from '../dsp/pitch.ts';
+import { type FrequencyBand, bandEnergyFractions, dominantHz, rolloffHz, spectralCentroidHz } from '../dsp/spectral-features.ts';
+import { type DisplaySpectrogram, type WelchSpectrogramOptions, welchSpectrogram } from '../dsp/spectrogram.ts';
+import type { WelchSpectrum } from '../dsp/welch.ts';
 import { type TruePeakReport, channelTruePeakLinear, measureTruePeak } from '../dsp/true-peak.ts';
 import { ampToDb } from '../units.ts';
 import type { AnalyzeSettings, ChannelFigures, SpectrumFigures } from './types.ts';
@@ -104,24 +105,40 @@ export function runSourceTask<T extends SourceTask>(
       break;
     }
     case 'spectrum': {
-      const { welch, spectrogram } = welchSpectrogram(source, sampleRate, { welchSize: s.fftSize, ownFramesPerColumn: 2 });
-      out.spectrum = {
-        welch,
-        centroidHz: spectralCentroidHz(welch),
-        rolloff95Hz: rolloffHz(welch, 0.95),
-        dominantHz: dominantHz(welch),
-        bands: bandEnergyFractions(welch, s.bands),
-        spectrogram,
-      };
+      const { welch, spectrogram } = welchSpectrogram(source, sampleRate, spectrogramOptions(s));
+      out.spectrum = spectrumFigures(welch, spectrogram, s.bands);
       break;
     }
     case 'pitch':
-      out.pitch = yinPitchTrack(source, sampleRate, { hopS: PITCH_HOP_S, maxHz: Math.min(PITCH_MAX_HZ, sampleRate / 4) });
+      out.pitch = yinPitchTrack(source, sampleRate, pitchOptions(sampleRate));
       break;
     default:
       throw new RangeError(`runSourceTask: unknown task ${String(task)}`);
   }
   return out[task] as TaskOutputs[T];
+}
+
+/** The display spectrogram's settings (welchSpectrogram): Welch's FFT size, two own frames per column for a short clip. */
+export const spectrogramOptions = (s: SourceTaskSettings): WelchSpectrogramOptions => ({ welchSize: s.fftSize, ownFramesPerColumn: 2 });
+
+/** The pitch track's settings at a sample rate (PITCH_HOP_S, up to min(PITCH_MAX_HZ, fs/4)). */
+export const pitchOptions = (sampleRate: number): YinOptions => ({ hopS: PITCH_HOP_S, maxHz: Math.min(PITCH_MAX_HZ, sampleRate / 4) });
+
+/**
+ * The spectrum figures read off Welch's spectrum: centroid, 95 % roll-off, dominant frequency and
+ * band fractions (spectral-features.ts), beside the spectrum and the display spectrogram.
+ *
+ * @example spectrumFigures(welch, spectrogram, DEFAULT_BANDS).centroidHz
+ */
+export function spectrumFigures(welch: WelchSpectrum, spectrogram: DisplaySpectrogram, bands: readonly FrequencyBand[]): TaskOutputs['spectrum'] {
+  return {
+    welch,
+    centroidHz: spectralCentroidHz(welch),
+    rolloff95Hz: rolloffHz(welch, 0.95),
+    dominantHz: dominantHz(welch),
+    bands: bandEnergyFractions(welch, bands),
+    spectrogram,
+  };
 }
 
 /**

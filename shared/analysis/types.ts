@@ -13,6 +13,15 @@ import type { BandFraction, FrequencyBand } from '../dsp/spectral-features.ts';
 import type { DisplaySpectrogram } from '../dsp/spectrogram.ts';
 import type { WelchSpectrum } from '../dsp/welch.ts';
 
+/** A clip as known before its samples: its length, channels and rate. */
+export interface ClipShape {
+  /** Samples per channel. */
+  sampleCount: number;
+  channelCount: number;
+  /** Hz. */
+  sampleRate: number;
+}
+
 export interface AnalyzeOptions {
   /** The signal that drives the coil (default 'mix'). */
   channel?: ModulationChannel;

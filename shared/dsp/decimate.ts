@@ -269,8 +269,8 @@ function halfBand13Pair(
   }
 }
 
-/** Output samples per block of {@link Decimator.run}. */
-const CASCADE_BLOCK = 8192;
+/** Output samples per block of {@link Decimator.run}; DecimatedStream makes at least this many at a time. */
+export const CASCADE_BLOCK = 8192;
 
 /**
  * The decimation of {@link decimate} as a cascade of FIR stages run block by block: for each block
@@ -289,10 +289,21 @@ export class Decimator {
   private readonly lo: number[];
   private readonly hi: number[];
 
+  /** Index in the whole signal of `signal[0]` (setInput). */
+  private base = 0;
+  /** Samples of the whole signal from `base` on that `signal` holds. */
+  private held: number;
+
+  /**
+   * @param signal the input, or its first stretch (see setInput)
+   * @param inputLength length of the whole input (default signal.length)
+   */
   constructor(
-    private readonly signal: ArrayLike<number>,
+    private signal: ArrayLike<number>,
     q: number,
+    inputLength = signal.length,
   ) {
+    this.held = signal.length;
     if (q > 1 && (q & (q - 1)) === 0) {
       const count = Math.round(Math.log2(q));
       for (let i = 1; i <= count; i++) {
@@ -302,7 +313,7 @@ export class Decimator {
     } else if (q > 1) {
       this.stages.push(firStage(q, decimationFilter(q)));
     }
-    this.ns = [signal.length];
+    this.ns = [inputLength];
     for (const st of this.stages) this.ns.push(Math.ceil(this.ns[this.ns.length - 1] / st.q));
     this.length = this.ns[this.stages.length];
     this.lo = new Array<number>(this.stages.length + 1);
@@ -310,6 +321,34 @@ export class Decimator {
     const taps013 = (st: FirStage | undefined) =>
       st !== undefined && st.q === 2 && st.offsets.length === 2 && st.offsets[0] === 1 && st.offsets[1] === 3;
     this.pairable = this.stages.map((st, i) => taps013(this.stages[i - 1]) && taps013(st));
+  }
+
+  /**
+   * Gives the input as a stretch of the whole signal: x[i] is sample base + i (for a signal that
+   * arrives in blocks and is not kept whole). Each `run` must then read only samples inside the
+   * stretch: {@link Decimator.inputRange} says which it reads; anything else is a RangeError.
+   */
+  setInput(x: ArrayLike<number>, base: number): void {
+    this.signal = x;
+    this.base = base;
+    this.held = x.length;
+  }
+
+  /**
+   * The input samples [from, to) that outputs m0…m1−1 (m0 < m1) read: the cascade's reach worked
+   * backwards, stage by stage (as run does).
+   *
+   * @example new Decimator(x, 8).inputRange(0, 100) // [0, 800 + reach)
+   */
+  inputRange(m0: number, m1: number): [number, number] {
+    let lo = m0;
+    let hi = m1;
+    for (let s = this.stages.length; s >= 1; s--) {
+      const st = this.stages[s - 1];
+      lo = Math.max(0, lo * st.q - st.half);
+      hi = Math.min(this.ns[s - 1], (hi - 1) * st.q + st.half + 1);
+    }
+    return [lo, hi];
   }
 
   /** pairable[s]: stages s and s + 1 (1-based) are both half-band stages with taps at 0, ±1, ±3. */
@@ -328,8 +367,14 @@ export class Decimator {
   run(m0: number, m1: number, out: Float32Array, o0: number): void {
     const { stages, ns, lo, hi, bufs } = this;
     const last = stages.length;
+    if (m1 > m0) {
+      const [need0, need1] = this.inputRange(m0, m1);
+      if (need0 < this.base || need1 > this.base + this.held) {
+        throw new RangeError(`Decimator.run: outputs ${m0}…${m1} read input ${need0}…${need1}, but only ${this.base}…${this.base + this.held} is given`);
+      }
+    }
     if (last === 0) {
-      for (let m = m0; m < m1; m++) out[o0 + m - m0] = this.signal[m];
+      for (let m = m0; m < m1; m++) out[o0 + m - m0] = this.signal[m - this.base];
       return;
     }
     for (let b0 = m0; b0 < m1; b0 += CASCADE_BLOCK) {
@@ -353,7 +398,7 @@ export class Decimator {
           dst = bufs[t];
           d0 = 0;
         }
-        const srcLo = s === 1 ? 0 : lo[s - 1];
+        const srcLo = s === 1 ? this.base : lo[s - 1];
         if (pair) {
           const a = stages[s - 1];
           const b = stages[s];
@@ -413,6 +458,11 @@ export class DecimatedStream {
       this.end = want;
     }
     return from - this.start;
+  }
+
+  /** One past the last decimated sample made so far (the next `ensure` that needs more starts there). */
+  get made(): number {
+    return this.end;
   }
 
   /** The buffer {@link DecimatedStream.ensure} indexes (the same array for the stream's life). */

@@ -27,6 +27,7 @@ import {
   histogramLayout,
   magnitudeHistogram,
 } from './histogram.ts';
+import { WholeUnits } from './whole-units.ts';
 
 /**
  * frameStart, held in this module: an imported binding may be read through a getter on the
@@ -174,9 +175,9 @@ export function sourceStatsPass(
   const bits = new Int32Array(signal.buffer, signal.byteOffset, n);
   const aA = onePoleCoefficient(opts.attackS, sampleRate);
   const aR = onePoleCoefficient(opts.releaseS, sampleRate);
-  const out: PassOutputs = { mean, meanSquare, min, max, peak, acc };
+  const out: PassOutputs = { mean, meanSquare, min, max, peak, acc, state: new Float64Array(2) };
   primeKernel(L);
-  const peakBits = sourceStatsKernel(signal, bits, spf, count, aA, aR, L, out);
+  const peakBits = sourceStatsKernel(signal, bits, 0, n, spf, 0, count, count, aA, aR, L, out);
   if (peakBits < 0) throw nonFinite(fn, -1 - peakBits, frameS);
   const histogram = emptyHistogram(L);
   addCounts(histogram, acc, peakBits, n);
@@ -192,35 +193,42 @@ interface PassOutputs {
   peak: Float64Array;
   /** Histogram counts [below, bins…, above, zeros] (histogram.ts, countMagnitudeBits). */
   acc: Int32Array;
+  /** Carried from run to run: [the follower's level, the float32 bits of the highest magnitude so far]. */
+  state: Float64Array;
 }
 
 /**
- * Kernel of sourceStatsPass: frame sums, extremes, follower maximum and histogram counts of all
- * `count` frames (the follower starts at 0); returns the float32 bits of the highest magnitude, or
- * −1 − k for the first frame k whose mean square is not finite (it stops there).
- * Trusts its inputs (bits aliases signal; count = frameCount(n, spf) ≥ 1).
+ * Kernel of sourceStatsPass: frame sums, extremes, follower maximum and histogram counts of frames
+ * k0…k1−1 of a signal of n samples and `count` frames, whose sample i is signal[i − base] (the
+ * follower's level and the highest magnitude so far come in out.state and go back there); returns
+ * the float32 bits of the highest magnitude, or −1 − k for the first frame k whose mean square is not
+ * finite (it stops there). Trusts its inputs (bits aliases signal; count = frameCount(n, spf) ≥ 1;
+ * signal holds the frames asked for).
  */
 function sourceStatsKernel(
   signal: Float32Array,
   bits: Int32Array,
+  base: number,
+  n: number,
   spf: number,
+  k0: number,
+  k1: number,
   count: number,
   aA: number,
   aR: number,
   L: HistogramLayout,
   out: PassOutputs,
 ): number {
-  const { mean, meanSquare, min, max, peak, acc } = out;
+  const { mean, meanSquare, min, max, peak, acc, state } = out;
   const { tab, edgeBits, shift, keyLo } = L;
-  const n = signal.length;
   const tabLen = tab.length;
   const aboveAt = L.nBins + 1;
   const zerosAt = L.nBins + 2;
-  let peakBits = 0;
-  let y = 0;
-  let start = 0;
-  for (let k = 0; k < count; k++) {
-    const end = k + 1 === count ? n : startOf(k + 1, spf);
+  let y = state[0];
+  let peakBits = state[1] | 0;
+  let start = startOf(k0, spf) - base;
+  for (let k = k0; k < k1; k++) {
+    const end = (k + 1 === count ? n : startOf(k + 1, spf)) - base;
     let s = 0;
     let s2 = 0;
     let lo = signal[start];
@@ -251,6 +259,8 @@ function sourceStatsKernel(
     peak[k] = m;
     start = end;
   }
+  state[0] = y;
+  state[1] = peakBits;
   return peakBits;
 }
 
@@ -280,10 +290,14 @@ function primeKernel(L: HistogramLayout): void {
     max: new Float32Array(2),
     peak: new Float64Array(2),
     acc: new Int32Array(L.nBins + 3),
+    state: new Float64Array(2),
   };
   const bits = new Int32Array(x.buffer);
   // V8 allocates a function's feedback vector only after several calls (lazy feedback allocation).
-  for (let r = 0; r < PRIME_CALLS; r++) sourceStatsKernel(x, bits, 4.5, 2, 0.5, 0.25, L, out);
+  for (let r = 0; r < PRIME_CALLS; r++) {
+    out.state.fill(0);
+    sourceStatsKernel(x, bits, 0, x.length, 4.5, 0, 2, 2, 0.5, 0.25, L, out);
+  }
 }
 
 /** computeFrameStats and peakEnvelopeFrames as two passes (sourceStatsPass's fallback). */
@@ -295,6 +309,84 @@ function frameStatsWithEnvelope(
 ): { frames: FrameStats; peak: Float64Array } {
   const frames = computeFrameStats(signal, sampleRate, { frameS });
   return { frames, peak: peakEnvelopeFrames(signal, sampleRate, { attackS: o.attackS, releaseS: o.releaseS, frameS }) };
+}
+
+/**
+ * {@link sourceStatsPass} block by block, for a signal whose length is known in advance and whose
+ * samples arrive in pieces (the modulation source of a file being decoded): `add` the next samples,
+ * in blocks of any lengths, then read `result()`. The follower's level and the histogram's counts
+ * are carried across blocks and a frame cut by a block edge is gathered first (whole-units.ts), so
+ * the result equals sourceStatsPass's on the whole signal exactly. Memory: the frame arrays only.
+ *
+ * @example const s = new SourceStatsStream(n, 44100, { attackS: 0.001, releaseS: 0.05 }); s.add(a); s.add(b); s.result()
+ */
+export class SourceStatsStream {
+  private readonly L: HistogramLayout;
+  private readonly out: PassOutputs;
+  private readonly frames: FrameStats;
+  private readonly histogram: MagnitudeHistogram;
+  private readonly units: WholeUnits;
+  private readonly aA: number;
+  private readonly aR: number;
+  private readonly one: Float32Array[] = [new Float32Array(0)];
+
+  /** @throws RangeError as sourceStatsPass for bad options, or for sampleCount < 1 */
+  constructor(
+    private readonly sampleCount: number,
+    sampleRate: number,
+    opts: { attackS: number; releaseS: number; frameS?: number; histogram?: Omit<HistogramOptions, 'into'> },
+  ) {
+    const fn = 'SourceStatsStream';
+    checkFollower(fn, { ...opts, sampleRate });
+    if (!(Number.isInteger(sampleCount) && sampleCount >= 1)) throw new RangeError(`${fn}: sampleCount must be an integer ≥ 1, got ${sampleCount}`);
+    const frameS = opts.frameS ?? 0.001;
+    const spf = checkFrameLayout(fn, sampleRate, frameS);
+    this.L = histogramLayout(opts.histogram);
+    const count = frameCount(sampleCount, spf);
+    this.frames = {
+      frameS,
+      sampleRate,
+      count,
+      samplesPerFrame: spf,
+      sampleCount,
+      mean: new Float64Array(count),
+      meanSquare: new Float64Array(count),
+      min: new Float32Array(count),
+      max: new Float32Array(count),
+    };
+    const f = this.frames;
+    this.out = { mean: f.mean, meanSquare: f.meanSquare, min: f.min, max: f.max, peak: new Float64Array(count), acc: new Int32Array(this.L.nBins + 3), state: new Float64Array(2) };
+    this.histogram = emptyHistogram(this.L);
+    this.aA = onePoleCoefficient(opts.attackS, sampleRate);
+    this.aR = onePoleCoefficient(opts.releaseS, sampleRate);
+    primeKernel(this.L);
+    this.units = new WholeUnits(1, count, sampleCount, (k) => startOf(k, spf), Math.ceil(spf) + 1, (x, base, k0, k1) => this.measure(x[0], base, k0, k1));
+  }
+
+  /** Adds the next `len` samples (x[0…len)). */
+  add(x: Float32Array, len = x.length): void {
+    this.one[0] = x;
+    this.units.add(this.one, len);
+  }
+
+  private measure(x: Float32Array, base: number, k0: number, k1: number): void {
+    const f = this.frames;
+    const from = startOf(k0, f.samplesPerFrame) - base;
+    const to = (k1 === f.count ? f.sampleCount : startOf(k1, f.samplesPerFrame)) - base;
+    const bits = new Int32Array(x.buffer, x.byteOffset, to);
+    const out = this.out;
+    const r = sourceStatsKernel(x, bits, base, f.sampleCount, f.samplesPerFrame, k0, k1, f.count, this.aA, this.aR, this.L, out);
+    if (r < 0) throw nonFinite('SourceStatsStream', -1 - r, f.frameS);
+    // each run's counts go into the float64 histogram at once (a run is at most one block, < 2^30 samples)
+    addCounts(this.histogram, out.acc, r, to - from);
+    out.acc.fill(0);
+  }
+
+  /** The frame statistics, peak envelope and histogram; RangeError before every sample has arrived. */
+  result(): { frames: FrameStats; peak: Float64Array; histogram: MagnitudeHistogram } {
+    this.units.end('SourceStatsStream.result');
+    return { frames: this.frames, peak: this.out.peak, histogram: this.histogram };
+  }
 }
 
 /**

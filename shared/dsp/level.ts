@@ -11,6 +11,7 @@
  */
 import { ampToDb, dbToPower } from '../units.ts';
 import { frameCount, frameStart } from './frame-stats.ts';
+import { WholeUnits } from './whole-units.ts';
 
 /**
  * Default clipping threshold, linear full scale: 1 − 1.5/32768 ≈ 0.999954 (−0.0004 dBFS), halfway
@@ -242,111 +243,160 @@ function trackClipRuns(
  */
 export function measureLevels(channels: Float32Array[], opts: MeasureLevelsOptions): LevelReport {
   const fn = 'measureLevels';
-  const { sampleRate } = opts;
-  const silenceThresholdDbfs = opts.silenceThresholdDbfs ?? -60;
-  const silenceWindowS = opts.silenceWindowS ?? 0.05;
-  const clipThreshold = opts.clipThreshold ?? DEFAULT_CLIP_THRESHOLD;
-  const minClipRun = opts.minClipRun ?? 3;
   if (channels.length === 0) throw new RangeError(`${fn}: channels is empty; give at least one channel`);
   const n = channels[0].length;
   if (n === 0) throw new RangeError(`${fn}: channels hold no samples`);
   channels.forEach((c, i) => {
     if (c.length !== n) throw new RangeError(`${fn}: channel ${i} has ${c.length} samples, channel 0 has ${n}`);
   });
-  if (!(Number.isFinite(sampleRate) && sampleRate > 0)) {
-    throw new RangeError(`${fn}: sampleRate must be a positive number of Hz, got ${sampleRate}`);
-  }
-  if (!Number.isFinite(silenceThresholdDbfs)) {
-    throw new RangeError(`${fn}: silenceThresholdDbfs must be a finite dBFS value, got ${silenceThresholdDbfs}`);
-  }
-  if (!(Number.isFinite(silenceWindowS) && silenceWindowS * sampleRate >= 1)) {
-    throw new RangeError(`${fn}: silenceWindowS must span at least one sample, got ${silenceWindowS}`);
-  }
-  if (!(clipThreshold > 0)) throw new RangeError(`${fn}: clipThreshold must be positive, got ${clipThreshold}`);
-  if (!(Number.isInteger(minClipRun) && minClipRun >= 1)) {
-    throw new RangeError(`${fn}: minClipRun must be an integer ≥ 1, got ${minClipRun}`);
+  const m = new LevelsStream(channels.length, n, opts, fn);
+  m.add(channels, n);
+  return m.result();
+}
+
+/**
+ * {@link measureLevels} block by block, for a signal whose length is known in advance and whose
+ * samples arrive in pieces (a file being decoded): `add` the channels' next samples, in blocks of
+ * any lengths, then read `result()`. Every window's sums run over its samples in order (a window
+ * cut by a block edge is gathered first: whole-units.ts), so the report equals measureLevels's of
+ * the whole signal exactly. Memory: one float64 per 50 ms window and one window per channel.
+ *
+ * @example const m = new LevelsStream(2, n, { sampleRate: 44100 }); m.add([l, r], l.length); m.result()
+ */
+export class LevelsStream {
+  private readonly units: WholeUnits;
+  private readonly totals: ChannelTotals[];
+  private readonly allWindowSums: Float64Array;
+  private readonly sums = new Float64Array(6);
+  private readonly spw: number;
+  private readonly windows: number;
+  private readonly silentMeanSquare: number;
+  private readonly settings: LevelReport['settings'];
+
+  /**
+   * @param channelCount channels per block
+   * @param sampleCount samples per channel in the whole signal (≥ 1)
+   * @throws RangeError for bad options (as measureLevels)
+   */
+  constructor(
+    private readonly channelCount: number,
+    private readonly sampleCount: number,
+    private readonly opts: MeasureLevelsOptions,
+    private readonly fn = 'LevelsStream',
+  ) {
+    const { sampleRate } = opts;
+    const silenceThresholdDbfs = opts.silenceThresholdDbfs ?? -60;
+    const silenceWindowS = opts.silenceWindowS ?? 0.05;
+    const clipThreshold = opts.clipThreshold ?? DEFAULT_CLIP_THRESHOLD;
+    const minClipRun = opts.minClipRun ?? 3;
+    if (!(Number.isInteger(channelCount) && channelCount >= 1)) throw new RangeError(`${fn}: channelCount must be an integer ≥ 1, got ${channelCount}`);
+    if (!(Number.isInteger(sampleCount) && sampleCount >= 1)) throw new RangeError(`${fn}: channels hold no samples`);
+    if (!(Number.isFinite(sampleRate) && sampleRate > 0)) {
+      throw new RangeError(`${fn}: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+    }
+    if (!Number.isFinite(silenceThresholdDbfs)) {
+      throw new RangeError(`${fn}: silenceThresholdDbfs must be a finite dBFS value, got ${silenceThresholdDbfs}`);
+    }
+    if (!(Number.isFinite(silenceWindowS) && silenceWindowS * sampleRate >= 1)) {
+      throw new RangeError(`${fn}: silenceWindowS must span at least one sample, got ${silenceWindowS}`);
+    }
+    if (!(clipThreshold > 0)) throw new RangeError(`${fn}: clipThreshold must be positive, got ${clipThreshold}`);
+    if (!(Number.isInteger(minClipRun) && minClipRun >= 1)) {
+      throw new RangeError(`${fn}: minClipRun must be an integer ≥ 1, got ${minClipRun}`);
+    }
+    this.settings = { silenceThresholdDbfs, silenceWindowS, clipThreshold, minClipRun };
+    const spw = (this.spw = sampleRate * silenceWindowS);
+    this.windows = frameCount(sampleCount, spw);
+    this.silentMeanSquare = dbToPower(silenceThresholdDbfs);
+    this.allWindowSums = new Float64Array(this.windows);
+    this.totals = Array.from({ length: channelCount }, newTotals);
+    this.units = new WholeUnits(channelCount, this.windows, sampleCount, (w) => frameStart(w, spw), Math.ceil(spw) + 1, (x, base, w0, w1) =>
+      this.measureWindows(x, base, w0, w1),
+    );
   }
 
-  const spw = sampleRate * silenceWindowS;
-  const windows = frameCount(n, spw);
-  const silentMeanSquare = dbToPower(silenceThresholdDbfs);
-  const allWindowSums = new Float64Array(windows);
-  const perChannel: ChannelLevels[] = [];
-  let allPeak = 0;
-  let allSum = 0;
-  let allSumSquares = 0;
-  let allClipped = 0;
-  let allRuns = 0;
+  /** Adds the next `len` samples of every channel (channels[c][0…len)). */
+  add(channels: Float32Array[], len: number): void {
+    if (channels.length !== this.channelCount) {
+      throw new RangeError(`${this.fn}: ${channels.length} channels given, ${this.channelCount} announced`);
+    }
+    this.units.add(channels, len);
+  }
 
-  const sums = new Float64Array(6);
+  /**
+   * Windows w0…w1−1 of every channel, channels in pairs (the last one alone when their number is
+   * odd): each channel's sums are accumulated exactly as when it is measured alone, and
+   * allWindowSums in channel order.
+   */
+  private measureWindows(x: Float32Array[], base: number, w0: number, w1: number): void {
+    const { sums, spw, windows, sampleCount } = this;
+    for (let c = 0; c < x.length; c += 2) {
+      const a = x[c];
+      const b = c + 1 < x.length ? x[c + 1] : undefined;
+      const ta = this.totals[c];
+      const tb = this.totals[c + 1];
+      for (let w = w0; w < w1; w++) {
+        const start = frameStart(w, spw) - base;
+        const end = (w + 1 === windows ? sampleCount : frameStart(w + 1, spw)) - base;
+        if (b === undefined) windowSums(a, start, end, sums);
+        else windowSumsPair(a, b, start, end, sums);
+        this.addWindow(ta, a, w, start, end, sums[0], sums[1], sums[2]);
+        if (b !== undefined) this.addWindow(tb, b, w, start, end, sums[3], sums[4], sums[5]);
+      }
+    }
+  }
+
   /** Adds window w = x[start, end) of one channel, with its sums s, s2 and peak, to its totals t. */
-  const addWindow = (
-    t: ChannelTotals,
-    x: Float32Array,
-    w: number,
-    start: number,
-    end: number,
-    s: number,
-    s2: number,
-    windowPeak: number,
-  ): void => {
+  private addWindow(t: ChannelTotals, x: Float32Array, w: number, start: number, end: number, s: number, s2: number, windowPeak: number): void {
+    const { clipThreshold, minClipRun } = this.settings;
     if (windowPeak > t.peak) t.peak = windowPeak;
     // Only a window holding a sample at or beyond the threshold needs the run tracker; any other
     // (non-empty) window ends a run carried into it at its first sample.
     if (windowPeak >= clipThreshold) trackClipRuns(x, start, end, clipThreshold, minClipRun, t);
     else if (t.run !== 0 && end > start) endClipRun(t, minClipRun);
-    if (s2 < silentMeanSquare * (end - start)) t.silentSamples += end - start;
-    allWindowSums[w] += s2;
+    if (s2 < this.silentMeanSquare * (end - start)) t.silentSamples += end - start;
+    this.allWindowSums[w] += s2;
     t.sum += s;
     t.sumSquares += s2;
-  };
-  /** Closes channel c's totals t: counts a run reaching the end, checks and reports the channel. */
-  const addChannel = (t: ChannelTotals, c: number): void => {
-    endClipRun(t, minClipRun);
-    if (!Number.isFinite(t.sumSquares) || !Number.isFinite(t.peak)) {
-      throw new RangeError(`${fn}: channel ${c} contains NaN or infinite samples`);
-    }
-    perChannel.push(levelsFrom(t.peak, t.sum, t.sumSquares, n, t.clipped, t.runs, t.silentSamples / n));
-    if (t.peak > allPeak) allPeak = t.peak;
-    allSum += t.sum;
-    allSumSquares += t.sumSquares;
-    allClipped += t.clipped;
-    allRuns += t.runs;
-  };
+  }
 
-  // Channels in pairs (the last one alone when their number is odd); each channel's sums are
-  // accumulated exactly as when it is measured alone, and allWindowSums in channel order.
-  for (let c = 0; c < channels.length; c += 2) {
-    const x = channels[c];
-    const y = c + 1 < channels.length ? channels[c + 1] : undefined;
-    const tx = newTotals();
-    const ty = newTotals();
-    let start = 0;
+  /** The level report of every sample added; RangeError before they have all arrived, or for NaN/±∞ samples. */
+  result(): LevelReport {
+    const { fn, sampleCount: n, settings, spw, windows } = this;
+    this.units.end(fn);
+    const perChannel: ChannelLevels[] = [];
+    let allPeak = 0;
+    let allSum = 0;
+    let allSumSquares = 0;
+    let allClipped = 0;
+    let allRuns = 0;
+    this.totals.forEach((t, c) => {
+      // a run reaching the end counts
+      endClipRun(t, settings.minClipRun);
+      if (!Number.isFinite(t.sumSquares) || !Number.isFinite(t.peak)) {
+        throw new RangeError(`${fn}: channel ${c} contains NaN or infinite samples`);
+      }
+      perChannel.push(levelsFrom(t.peak, t.sum, t.sumSquares, n, t.clipped, t.runs, t.silentSamples / n));
+      if (t.peak > allPeak) allPeak = t.peak;
+      allSum += t.sum;
+      allSumSquares += t.sumSquares;
+      allClipped += t.clipped;
+      allRuns += t.runs;
+    });
+    let allSilent = 0;
+    const nc = this.channelCount;
     for (let w = 0; w < windows; w++) {
-      const end = w + 1 === windows ? n : frameStart(w + 1, spw);
-      if (y === undefined) windowSums(x, start, end, sums);
-      else windowSumsPair(x, y, start, end, sums);
-      addWindow(tx, x, w, start, end, sums[0], sums[1], sums[2]);
-      if (y !== undefined) addWindow(ty, y, w, start, end, sums[3], sums[4], sums[5]);
-      start = end;
+      const len = (w + 1 === windows ? n : frameStart(w + 1, spw)) - frameStart(w, spw);
+      if (this.allWindowSums[w] < this.silentMeanSquare * len * nc) allSilent += len;
     }
-    addChannel(tx, c);
-    if (y !== undefined) addChannel(ty, c + 1);
+    const overall = levelsFrom(allPeak, allSum, allSumSquares, n * nc, allClipped, allRuns, allSilent / n);
+    return {
+      sampleRate: this.opts.sampleRate,
+      sampleCount: n,
+      durationS: n / this.opts.sampleRate,
+      overall,
+      perChannel,
+      settings,
+    };
   }
-
-  let allSilent = 0;
-  const nc = channels.length;
-  for (let w = 0; w < windows; w++) {
-    const len = (w + 1 === windows ? n : frameStart(w + 1, spw)) - frameStart(w, spw);
-    if (allWindowSums[w] < silentMeanSquare * len * nc) allSilent += len;
-  }
-  const overall = levelsFrom(allPeak, allSum, allSumSquares, n * nc, allClipped, allRuns, allSilent / n);
-  return {
-    sampleRate,
-    sampleCount: n,
-    durationS: n / sampleRate,
-    overall,
-    perChannel,
-    settings: { silenceThresholdDbfs, silenceWindowS, clipThreshold, minClipRun },
-  };
 }

@@ -19,6 +19,7 @@ import { kWeightingCoeffs, type KWeightingCoeffs } from './k-weighting.ts';
 import { INTEGRATED_RELATIVE_GATE_LU, gate, loudnessLufs } from './gating.ts';
 import { loudnessRangeLu } from './loudness-range.ts';
 import { checkChannels } from './check-channels.ts';
+import { WholeUnits } from './whole-units.ts';
 
 /** Hop between successive momentary/short-term values and gating blocks, s (75 % overlap of 400 ms). */
 export const BLOCK_HOP_S = 0.1;
@@ -111,16 +112,37 @@ export function kWeightedSubBlockSums(
   edges: Float64Array,
   out: Float64Array,
 ): Float64Array {
+  kWeightRun(samples, 0, coeffs, edges, 0, edges.length - 1, out, new Float64Array(4), 0);
+  return out;
+}
+
+/**
+ * The kernel of {@link kWeightedSubBlockSums} over sub-blocks k0…k1−1 only, the filter state carried
+ * in st[o…o+3] (s1, s2, t1, t2; zeros for a filter at rest) and updated: the samples of sub-block k
+ * are samples[edges[k] − base … edges[k+1] − base), so a signal that arrives in blocks goes through
+ * it block by block with the same arithmetic as in one call. Kernel: trusts its inputs.
+ */
+function kWeightRun(
+  samples: Float32Array,
+  base: number,
+  coeffs: KWeightingCoeffs,
+  edges: Float64Array,
+  k0: number,
+  k1: number,
+  out: Float64Array,
+  st: Float64Array,
+  o: number,
+): void {
   const { b0: p0, b1: p1, b2: p2, a1: pa1, a2: pa2 } = coeffs.shelf;
   const { b0: h0, b1: h1, b2: h2, a1: ha1, a2: ha2 } = coeffs.highPass;
-  let s1 = 0;
-  let s2 = 0;
-  let t1 = 0;
-  let t2 = 0;
-  for (let k = 0; k + 1 < edges.length; k++) {
-    const end = edges[k + 1];
+  let s1 = st[o];
+  let s2 = st[o + 1];
+  let t1 = st[o + 2];
+  let t2 = st[o + 3];
+  for (let k = k0; k < k1; k++) {
+    const end = edges[k + 1] - base;
     let acc = 0;
-    for (let i = edges[k]; i < end; i++) {
+    for (let i = edges[k] - base; i < end; i++) {
       const x = samples[i];
       const u = p0 * x + s1;
       s1 = p1 * x - pa1 * u + s2;
@@ -138,7 +160,10 @@ export function kWeightedSubBlockSums(
     if (Math.abs(t1) < STATE_FLUSH) t1 = 0;
     if (Math.abs(t2) < STATE_FLUSH) t2 = 0;
   }
-  return out;
+  st[o] = s1;
+  st[o + 1] = s2;
+  st[o + 2] = t1;
+  st[o + 3] = t2;
 }
 
 /**
@@ -162,27 +187,46 @@ export function kWeightedSubBlockSumsPair(
   outA: Float64Array,
   outB: Float64Array,
 ): void {
-  if (edges[edges.length - 1] > MAX_INT32_INDEX) {
+  kWeightRunPair(a, b, 0, coeffs, edges, 0, edges.length - 1, outA, outB, new Float64Array(8));
+}
+
+/**
+ * The kernel of {@link kWeightedSubBlockSumsPair} over sub-blocks k0…k1−1 only, as kWeightRun is
+ * kWeightedSubBlockSums's: st[0…3] the state of a's filters, st[4…7] b's. Kernel: trusts its inputs.
+ */
+function kWeightRunPair(
+  a: Float32Array,
+  b: Float32Array,
+  base: number,
+  coeffs: KWeightingCoeffs,
+  edges: Float64Array,
+  k0: number,
+  k1: number,
+  outA: Float64Array,
+  outB: Float64Array,
+  st: Float64Array,
+): void {
+  if (k1 > k0 && edges[k1] - base > MAX_INT32_INDEX) {
     // Indices past int32 (over 12 h at 48 kHz): the loop below counts in int32, the single kernel does not.
-    kWeightedSubBlockSums(a, coeffs, edges, outA);
-    kWeightedSubBlockSums(b, coeffs, edges, outB);
+    kWeightRun(a, base, coeffs, edges, k0, k1, outA, st, 0);
+    kWeightRun(b, base, coeffs, edges, k0, k1, outB, st, 4);
     return;
   }
   const { b0: p0, b1: p1, b2: p2, a1: pa1, a2: pa2 } = coeffs.shelf;
   const { b0: h0, b1: h1, b2: h2, a1: ha1, a2: ha2 } = coeffs.highPass;
-  let s1 = 0;
-  let s2 = 0;
-  let t1 = 0;
-  let t2 = 0;
-  let r1 = 0;
-  let r2 = 0;
-  let q1 = 0;
-  let q2 = 0;
-  for (let k = 0; k + 1 < edges.length; k++) {
-    const end = edges[k + 1] | 0;
+  let s1 = st[0];
+  let s2 = st[1];
+  let t1 = st[2];
+  let t2 = st[3];
+  let r1 = st[4];
+  let r2 = st[5];
+  let q1 = st[6];
+  let q2 = st[7];
+  for (let k = k0; k < k1; k++) {
+    const end = (edges[k + 1] - base) | 0;
     let accA = 0;
     let accB = 0;
-    for (let i = edges[k] | 0; i < end; i++) {
+    for (let i = (edges[k] - base) | 0; i < end; i++) {
       const x = a[i];
       const v = b[i];
       const u = p0 * x + s1;
@@ -202,7 +246,7 @@ export function kWeightedSubBlockSumsPair(
     }
     outA[k] += accA;
     outB[k] += accB;
-    // The same flush as kWeightedSubBlockSums, per channel.
+    // The same flush as kWeightRun, per channel.
     if (Math.abs(s1) < STATE_FLUSH) s1 = 0;
     if (Math.abs(s2) < STATE_FLUSH) s2 = 0;
     if (Math.abs(t1) < STATE_FLUSH) t1 = 0;
@@ -212,6 +256,14 @@ export function kWeightedSubBlockSumsPair(
     if (Math.abs(q1) < STATE_FLUSH) q1 = 0;
     if (Math.abs(q2) < STATE_FLUSH) q2 = 0;
   }
+  st[0] = s1;
+  st[1] = s2;
+  st[2] = t1;
+  st[3] = t2;
+  st[4] = r1;
+  st[5] = r2;
+  st[6] = q1;
+  st[7] = q2;
 }
 
 /** Loudness of each complete window of `span` sub-blocks, starting at every sub-block. */
@@ -266,69 +318,130 @@ export function measureLoudness(
   opts: { channelWeights?: number[] } = {},
 ): LoudnessReport {
   checkChannels('measureLoudness', channels, sampleRate);
+  const m = new LoudnessStream(channels.length, channels[0].length, sampleRate, opts, 'measureLoudness');
+  m.add(channels, channels[0].length);
+  return m.result();
+}
+
+/** The channel weights Gᵢ of `opts`, checked, or the defaults of defaultChannelWeights. */
+function channelWeights(fn: string, channelCount: number, sampleRate: number, opts: { channelWeights?: number[] }): number[] {
   if (sampleRate < MIN_LOUDNESS_SAMPLE_RATE_HZ) {
     throw new InputError(
       'unsupported-sample-rate',
       `Loudness needs a sample rate of at least ${MIN_LOUDNESS_SAMPLE_RATE_HZ} Hz, the clip has ${sampleRate} Hz: resample it first.`,
     );
   }
-  let weights: number[];
   if (opts.channelWeights !== undefined) {
-    weights = opts.channelWeights;
-    if (weights.length !== channels.length) {
-      throw new RangeError(
-        `measureLoudness: channelWeights has ${weights.length} values for ${channels.length} channels`,
-      );
+    const weights = opts.channelWeights;
+    if (weights.length !== channelCount) {
+      throw new RangeError(`${fn}: channelWeights has ${weights.length} values for ${channelCount} channels`);
     }
     for (const [i, g] of weights.entries()) {
       if (!(Number.isFinite(g) && g >= 0)) {
-        throw new RangeError(`measureLoudness: channelWeights[${i}] must be finite and ≥ 0, got ${g}`);
+        throw new RangeError(`${fn}: channelWeights[${i}] must be finite and ≥ 0, got ${g}`);
       }
     }
-  } else {
-    const d = defaultChannelWeights(channels.length);
-    if (d === null) {
-      throw new InputError(
-        'unsupported-channel-layout',
-        `Cannot weight ${channels.length} channels for loudness: the layout is ambiguous. ` +
-          'Use a mono, stereo, 3.0, 5.0 or 5.1 file, or downmix it to stereo.',
-      );
-    }
-    weights = d;
+    return weights;
+  }
+  const d = defaultChannelWeights(channelCount);
+  if (d === null) {
+    throw new InputError(
+      'unsupported-channel-layout',
+      `Cannot weight ${channelCount} channels for loudness: the layout is ambiguous. ` +
+        'Use a mono, stereo, 3.0, 5.0 or 5.1 file, or downmix it to stereo.',
+    );
+  }
+  return d;
+}
+
+/**
+ * {@link measureLoudness} block by block, for a clip whose length is known in advance and whose
+ * samples arrive in pieces (a file being decoded): `add` the channels' next samples, in blocks of
+ * any lengths, then read `result()`. The filters' state is carried from block to block and a
+ * sub-block cut by a block edge is gathered first (whole-units.ts), so the report equals
+ * measureLoudness's of the whole clip exactly. Memory: one float64 per channel and 100 ms.
+ *
+ * @example const m = new LoudnessStream(2, n, 48000); m.add([l, r], l.length); m.result().integratedLufs
+ */
+export class LoudnessStream {
+  private readonly weights: number[];
+  /** Channels of weight > 0, in order; filtered two at a time. */
+  private readonly active: number[];
+  private readonly edges: Float64Array;
+  private readonly coeffs: KWeightingCoeffs;
+  /** Sub-block sums Σ y² per channel (active channels only). */
+  private readonly sums: Float64Array[];
+  /** Filter state per active pair (8 values) or lone channel (4). */
+  private readonly state: Float64Array[];
+  private readonly units: WholeUnits;
+  private readonly picked: Float32Array[];
+
+  /**
+   * @param sampleCount samples per channel of the whole clip
+   * @throws as measureLoudness for the rate and the weights
+   */
+  constructor(
+    private readonly channelCount: number,
+    sampleCount: number,
+    sampleRate: number,
+    opts: { channelWeights?: number[] } = {},
+    private readonly fn = 'LoudnessStream',
+  ) {
+    this.weights = channelWeights(fn, channelCount, sampleRate, opts);
+    this.active = this.weights.flatMap((g, i) => (g === 0 ? [] : [i]));
+    this.edges = subBlockEdges(sampleRate, sampleCount);
+    this.coeffs = kWeightingCoeffs(sampleRate);
+    const subBlocks = this.edges.length - 1;
+    this.sums = this.active.map(() => new Float64Array(subBlocks));
+    this.state = [];
+    for (let j = 0; j < this.active.length; j += 2) this.state.push(new Float64Array(8));
+    this.picked = this.active.map(() => new Float32Array(0));
+    // Samples after the last whole sub-block lie in no block and are not read (module comment).
+    const edges = this.edges;
+    const covered = edges[subBlocks];
+    this.units = new WholeUnits(this.active.length, subBlocks, covered, (k) => edges[k], Math.ceil(sampleRate / 10) + 1, (x, base, k0, k1) =>
+      this.filter(x, base, k0, k1),
+    );
   }
 
-  const edges = subBlockEdges(sampleRate, channels[0].length);
-  const subBlocks = edges.length - 1;
-  const coeffs = kWeightingCoeffs(sampleRate);
-  const weighted = new Float64Array(subBlocks);
-  const scratch = new Float64Array(subBlocks);
-  const scratchB = new Float64Array(subBlocks);
-  // Channels of weight 0 are skipped; the others are filtered two at a time and added in channel order.
-  const active = weights.flatMap((g, i) => (g === 0 ? [] : [i]));
-  for (let j = 0; j < active.length; j += 2) {
-    const i = active[j];
-    scratch.fill(0);
-    if (j + 1 < active.length) {
-      const i2 = active[j + 1];
-      scratchB.fill(0);
-      kWeightedSubBlockSumsPair(channels[i], channels[i2], coeffs, edges, scratch, scratchB);
-      addScaled(weighted, weights[i], scratch);
-      addScaled(weighted, weights[i2], scratchB);
-    } else {
-      kWeightedSubBlockSums(channels[i], coeffs, edges, scratch);
-      addScaled(weighted, weights[i], scratch);
+  /** Adds the next `len` samples of every channel (channels[c][0…len)). */
+  add(channels: Float32Array[], len: number): void {
+    if (channels.length !== this.channelCount) {
+      throw new RangeError(`${this.fn}: ${channels.length} channels given, ${this.channelCount} announced`);
+    }
+    const take = Math.min(len, this.edges[this.edges.length - 1] - this.units.received);
+    if (take <= 0) return;
+    for (let j = 0; j < this.active.length; j++) this.picked[j] = channels[this.active[j]];
+    this.units.add(this.picked, take);
+  }
+
+  /** Sub-blocks k0…k1−1 of the active channels (x[j] is active channel j), two at a time. */
+  private filter(x: Float32Array[], base: number, k0: number, k1: number): void {
+    const { coeffs, edges, sums } = this;
+    for (let j = 0; j < x.length; j += 2) {
+      const st = this.state[j >> 1];
+      if (j + 1 < x.length) kWeightRunPair(x[j], x[j + 1], base, coeffs, edges, k0, k1, sums[j], sums[j + 1], st);
+      else kWeightRun(x[j], base, coeffs, edges, k0, k1, sums[j], st, 0);
     }
   }
 
-  const momentaryLufs = windowLoudness(weighted, edges, MOMENTARY_SUBBLOCKS);
-  const shortTermLufs = windowLoudness(weighted, edges, SHORT_TERM_SUBBLOCKS);
-  return {
-    integratedLufs: gate(momentaryLufs, INTEGRATED_RELATIVE_GATE_LU).meanLufs,
-    maxMomentaryLufs: maxOf(momentaryLufs),
-    maxShortTermLufs: maxOf(shortTermLufs),
-    loudnessRangeLu: loudnessRangeLu(shortTermLufs),
-    momentaryLufs,
-    shortTermLufs,
-    blockHopS: 0.1,
-  };
+  /** The loudness report; RangeError before every sample up to the last whole sub-block has arrived. */
+  result(): LoudnessReport {
+    this.units.end(this.fn);
+    const { edges, weights, active, sums } = this;
+    const weighted = new Float64Array(edges.length - 1);
+    // added in channel order, as measureLoudness always has
+    for (let j = 0; j < active.length; j++) addScaled(weighted, weights[active[j]], sums[j]);
+    const momentaryLufs = windowLoudness(weighted, edges, MOMENTARY_SUBBLOCKS);
+    const shortTermLufs = windowLoudness(weighted, edges, SHORT_TERM_SUBBLOCKS);
+    return {
+      integratedLufs: gate(momentaryLufs, INTEGRATED_RELATIVE_GATE_LU).meanLufs,
+      maxMomentaryLufs: maxOf(momentaryLufs),
+      maxShortTermLufs: maxOf(shortTermLufs),
+      loudnessRangeLu: loudnessRangeLu(shortTermLufs),
+      momentaryLufs,
+      shortTermLufs,
+      blockHopS: 0.1,
+    };
+  }
 }

@@ -46,7 +46,7 @@
  * 0.2·fs_a (2.2 kHz at the defaults) are attenuated in the search (not in the refinement), so a
  * missing fundamental is found from its harmonics below that frequency.
  */
-import { DecimatedStream, Decimator } from './decimate.ts';
+import { CASCADE_BLOCK, DecimatedStream, Decimator } from './decimate.ts';
 import { BlockCorrelator, RunningPrefixSums } from './yin-difference.ts';
 
 
@@ -111,100 +111,192 @@ const REFINE_BELOW_SAMPLES = 40;
  *   const t = yinPitchTrack(voice, 44100); // t.medianHz ≈ 220 for a sung A3
  */
 export function yinPitchTrack(signal: Float32Array, sampleRate: number, opts: YinOptions = {}): PitchTrack {
-  if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
-    throw new RangeError(`yinPitchTrack: sampleRate must be a positive number of Hz, got ${sampleRate}`);
-  }
-  const hopS = opts.hopS ?? 0.01;
-  const minHz = opts.minHz ?? 40;
-  const maxHz = opts.maxHz ?? 2000;
-  const threshold = opts.threshold ?? 0.15;
-  const windowS = opts.windowS ?? 1 / minHz;
-  if (!(hopS > 0) || !Number.isFinite(hopS)) {
-    throw new RangeError(`yinPitchTrack: opts.hopS must be > 0 s, got ${hopS}`);
-  }
-  if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 4)) {
-    throw new RangeError(
-      `yinPitchTrack: need 0 < opts.minHz < opts.maxHz ≤ fs/4 = ${sampleRate / 4} Hz, got ${minHz}…${maxHz}`,
-    );
-  }
-  if (!(threshold > 0 && threshold < 1)) {
-    throw new RangeError(`yinPitchTrack: opts.threshold must be in (0, 1), got ${threshold}`);
-  }
-  if (!(windowS >= 1 / minHz - 1e-12) || !Number.isFinite(windowS)) {
-    throw new RangeError(`yinPitchTrack: opts.windowS must be at least 1/minHz = ${1 / minHz} s, got ${windowS}`);
+  const t = new YinTracker(signal.length, sampleRate, opts);
+  t.setInput(signal, 0);
+  t.advance(signal.length);
+  return t.result();
+}
+
+/**
+ * The YIN pitch track of {@link yinPitchTrack} for a signal whose length is known in advance, its
+ * frames taken as far as the samples given allow: `setInput(x, base)` names the stretch of the
+ * signal held (x[i] is sample base + i), `advance(available)` analyses every frame whose samples,
+ * with the decimation's reach, lie below `available`, and `keepFrom()` says the first sample the
+ * frames still to come may read (so a caller can drop what lies before). With the stretches given
+ * in order the frames, and so the track, are exactly those of one call over the whole signal: the
+ * same code on the same samples.
+ */
+export class YinTracker {
+  private readonly q: number;
+  private readonly fsA: number;
+  private readonly dec: Decimator;
+  private readonly x: DecimatedStream;
+  private readonly prefix: RunningPrefixSums;
+  private readonly correlator: BlockCorrelator;
+  private readonly corr: Float64Array;
+  private readonly d: Float64Array;
+  private readonly dn: Float64Array;
+  private readonly lowest = new Float64Array(1); // searchDips' smallest d′
+  private readonly minRefine: number;
+  private readonly tauMin: number;
+  private readonly tauMax: number;
+  private readonly lags: number;
+  private readonly hop: number;
+  private readonly w: number;
+  private readonly block: number;
+  private readonly blocksPerHop: number;
+  private readonly blocksPerWindow: number;
+  private readonly frames: number;
+  private readonly threshold: number;
+  private readonly timesS: Float64Array;
+  private readonly f0Hz: Float32Array;
+  private readonly aperiodicity: Float32Array;
+  private readonly voiced: number[] = [];
+  private signal: Float32Array = new Float32Array(0);
+  private base = 0;
+  /** The next frame to analyse. */
+  private f = 0;
+
+  /** @throws RangeError for a bad sample rate or option (the message names it) */
+  constructor(
+    private readonly sampleCount: number,
+    private readonly sampleRate: number,
+    opts: YinOptions = {},
+  ) {
+    if (!(sampleRate > 0) || !Number.isFinite(sampleRate)) {
+      throw new RangeError(`yinPitchTrack: sampleRate must be a positive number of Hz, got ${sampleRate}`);
+    }
+    const hopS = opts.hopS ?? 0.01;
+    const minHz = opts.minHz ?? 40;
+    const maxHz = opts.maxHz ?? 2000;
+    const threshold = (this.threshold = opts.threshold ?? 0.15);
+    const windowS = opts.windowS ?? 1 / minHz;
+    if (!(hopS > 0) || !Number.isFinite(hopS)) {
+      throw new RangeError(`yinPitchTrack: opts.hopS must be > 0 s, got ${hopS}`);
+    }
+    if (!(minHz > 0 && minHz < maxHz && maxHz <= sampleRate / 4)) {
+      throw new RangeError(
+        `yinPitchTrack: need 0 < opts.minHz < opts.maxHz ≤ fs/4 = ${sampleRate / 4} Hz, got ${minHz}…${maxHz}`,
+      );
+    }
+    if (!(threshold > 0 && threshold < 1)) {
+      throw new RangeError(`yinPitchTrack: opts.threshold must be in (0, 1), got ${threshold}`);
+    }
+    if (!(windowS >= 1 / minHz - 1e-12) || !Number.isFinite(windowS)) {
+      throw new RangeError(`yinPitchTrack: opts.windowS must be at least 1/minHz = ${1 / minHz} s, got ${windowS}`);
+    }
+
+    const q = (this.q = Math.max(1, Math.floor(sampleRate / (MIN_PERIOD_SAMPLES * maxHz))));
+    const fsA = (this.fsA = sampleRate / q);
+    this.dec = new Decimator(this.signal, q, sampleCount);
+    const n = this.dec.length;
+
+    this.tauMin = Math.max(2, Math.floor(fsA / maxHz));
+    const tauMax = (this.tauMax = Math.ceil(fsA / minHz));
+    const lags = (this.lags = tauMax + 2); // lags 0…tauMax+1 (the +1 for the right neighbour of a dip at tauMax)
+    // blocks of at most lags/2 samples keep the FFT near 2–4 × lags long; a hop is a whole number of them
+    const hopSamples = Math.max(1, Math.round(hopS * fsA));
+    const blocksPerHop = (this.blocksPerHop = Math.ceil(hopSamples / Math.max(1, Math.floor(lags / 2))));
+    const block = (this.block = Math.max(1, Math.round(hopSamples / blocksPerHop)));
+    const hop = (this.hop = blocksPerHop * block);
+    const blocksPerWindow = (this.blocksPerWindow = Math.ceil(Math.max(windowS * fsA, tauMax) / block));
+    const w = (this.w = blocksPerWindow * block);
+    const frames = (this.frames = n >= w + lags ? Math.floor((n - w - lags) / hop) + 1 : 0);
+
+    // The decimated signal is read as it is made: the correlator reads up to ahead + 3 blocks past
+    // the window it correlates, the running sums from the window's start; keep both reaches.
+    this.x = new DecimatedStream(this.dec, 2 * (w + lags + hop) + (Math.ceil(lags / block) + 4) * block);
+    this.prefix = new RunningPrefixSums(this.x, 4 * (w + lags + hop));
+    this.correlator = new BlockCorrelator(this.x, block, blocksPerWindow, lags);
+    this.corr = new Float64Array(this.correlator.size);
+    this.d = new Float64Array(lags);
+    this.dn = new Float64Array(lags);
+    this.minRefine = Math.round(0.005 * sampleRate);
+    this.timesS = new Float64Array(frames);
+    this.f0Hz = new Float32Array(frames).fill(Number.NaN);
+    this.aperiodicity = new Float32Array(frames).fill(1);
   }
 
-  const q = Math.max(1, Math.floor(sampleRate / (MIN_PERIOD_SAMPLES * maxHz)));
-  const fsA = sampleRate / q;
-  const dec = new Decimator(signal, q);
-  const n = dec.length;
+  /** The stretch of the signal held: x[i] is sample base + i. */
+  setInput(x: Float32Array, base: number): void {
+    this.signal = x;
+    this.base = base;
+    this.dec.setInput(x, base);
+  }
 
-  const tauMin = Math.max(2, Math.floor(fsA / maxHz));
-  const tauMax = Math.ceil(fsA / minHz);
-  const lags = tauMax + 2; // lags 0…tauMax+1 (the +1 for the right neighbour of a dip at tauMax)
-  // blocks of at most lags/2 samples keep the FFT near 2–4 × lags long; a hop is a whole number of them
-  const hopSamples = Math.max(1, Math.round(hopS * fsA));
-  const blocksPerHop = Math.ceil(hopSamples / Math.max(1, Math.floor(lags / 2)));
-  const block = Math.max(1, Math.round(hopSamples / blocksPerHop));
-  const hop = blocksPerHop * block;
-  const blocksPerWindow = Math.ceil(Math.max(windowS * fsA, tauMax) / block);
-  const w = blocksPerWindow * block;
-  const frames = n >= w + lags ? Math.floor((n - w - lags) / hop) + 1 : 0;
+  /**
+   * One past the last full-rate sample frame f may read: its window and lags in the decimated
+   * signal, the correlator's blocks ahead of it, the decimated stream's read-ahead of up to one
+   * cascade block, and the decimation's reach back to the full rate (the full-rate refinement reads
+   * within the frame's own span).
+   */
+  private need(f: number): number {
+    const t0 = f * this.hop;
+    const ahead = Math.ceil(this.lags / this.block);
+    const lastBlock = f * this.blocksPerHop + this.blocksPerWindow - 1;
+    const decimated = Math.min(this.dec.length, Math.max(t0 + this.w + this.lags, (lastBlock + ahead + 4) * this.block) + CASCADE_BLOCK);
+    return Math.max(this.dec.inputRange(0, Math.max(1, decimated))[1], Math.min(this.sampleCount, (t0 + this.w + this.lags) * this.q + 2));
+  }
 
-  // The decimated signal is read as it is made: the correlator reads up to ahead + 3 blocks past
-  // the window it correlates, the running sums from the window's start; keep both reaches.
-  const x = new DecimatedStream(dec, 2 * (w + lags + hop) + (Math.ceil(lags / block) + 4) * block);
-  const prefix = new RunningPrefixSums(x, 4 * (w + lags + hop));
-  const correlator = new BlockCorrelator(x, block, blocksPerWindow, lags);
-  const corr = new Float64Array(correlator.size);
-  const d = new Float64Array(lags);
-  const dn = new Float64Array(lags);
-  const minRefine = Math.round(0.005 * sampleRate);
-  const cumSq = prefix.values();
-  const lowest = new Float64Array(1); // searchDips' smallest d′
+  /** The first full-rate sample the frames still to come may read. */
+  keepFrom(): number {
+    const t0 = Math.min(this.f, this.frames) * this.hop;
+    const made = this.x.made;
+    const decimator = made < this.dec.length ? this.dec.inputRange(made, made + 1)[0] : this.sampleCount;
+    return Math.max(0, Math.min(t0 * this.q, decimator));
+  }
 
-  const timesS = new Float64Array(frames);
-  const f0Hz = new Float32Array(frames).fill(Number.NaN);
-  const aperiodicity = new Float32Array(frames).fill(1);
-  const voiced: number[] = [];
-  for (let f = 0; f < frames; f++) {
-    correlator.advanceTo(f * blocksPerHop + blocksPerWindow - 1); // the blocks up to the window's last
+  /** Analyses the frames whose samples all lie below `available` (every frame once it is sampleCount). */
+  advance(available: number): void {
+    const all = available >= this.sampleCount;
+    while (this.f < this.frames && (all || this.need(this.f) <= available)) this.frame(this.f++);
+  }
+
+  private frame(f: number): void {
+    const { q, fsA, hop, w, lags, tauMax, d, dn, corr, lowest } = this;
+    this.correlator.advanceTo(f * this.blocksPerHop + this.blocksPerWindow - 1); // the blocks up to the window's last
     const t0 = f * hop;
-    timesS[f] = (t0 + (w + tauMax) / 2) / fsA;
-    const p0 = prefix.window(t0, w + lags); // cumSq[p0 + j] = Σ_{i<t0+j} x[i]²
+    this.timesS[f] = (t0 + (w + tauMax) / 2) / fsA;
+    const p0 = this.prefix.window(t0, w + lags); // cumSq[p0 + j] = Σ_{i<t0+j} x[i]²
+    const cumSq = this.prefix.values();
     const e0 = cumSq[p0 + w] - cumSq[p0];
-    if (e0 <= SILENT_MEAN_SQUARE * w) continue;
+    if (e0 <= SILENT_MEAN_SQUARE * w) return;
 
     // steps 2–4, lag by lag up to the first qualifying dip
-    correlator.correlate(corr);
-    const tau = searchDips(corr, cumSq, p0, w, e0, d, dn, tauMin, tauMax, threshold, lowest);
+    this.correlator.correlate(corr);
+    const tau = searchDips(corr, cumSq, p0, w, e0, d, dn, this.tauMin, tauMax, this.threshold, lowest);
     if (tau < 0) {
-      aperiodicity[f] = lowest[0];
-      continue;
+      this.aperiodicity[f] = lowest[0];
+      return;
     }
-    aperiodicity[f] = Math.max(0, dn[tau] - parabolaDepth(dn[tau - 1], dn[tau], dn[tau + 1]));
+    this.aperiodicity[f] = Math.max(0, dn[tau] - parabolaDepth(dn[tau - 1], dn[tau], dn[tau + 1]));
 
     // step 5: parabolic interpolation on d, refined at the full rate where the analysis rate is coarse
     const lag = tau + parabolaOffset(d[tau - 1], d[tau], d[tau + 1]);
     let period = lag * q;
-    if (q > 1 && lag < REFINE_BELOW_SAMPLES) period = refineFullRate(signal, t0 * q, w * q, period, q, minRefine);
-    const hz = sampleRate / period;
-    f0Hz[f] = hz;
-    voiced.push(hz);
+    if (q > 1 && lag < REFINE_BELOW_SAMPLES) period = refineFullRate(this.signal, t0 * q - this.base, w * q, period, q, this.minRefine, this.sampleCount - this.base);
+    const hz = this.sampleRate / period;
+    this.f0Hz[f] = hz;
+    this.voiced.push(hz);
   }
 
-  voiced.sort((a, b) => a - b);
-  const mid = voiced.length >> 1;
-  const medianHz =
-    voiced.length === 0 ? null : voiced.length % 2 ? voiced[mid] : 0.5 * (voiced[mid - 1] + voiced[mid]);
-  return {
-    hopS: hop / fsA,
-    timesS,
-    f0Hz,
-    aperiodicity,
-    medianHz,
-    voicedFraction: frames > 0 ? voiced.length / frames : 0,
-  };
+  /** The track; RangeError when some frame has not been analysed (advance with every sample first). */
+  result(): PitchTrack {
+    if (this.f < this.frames) throw new RangeError(`YinTracker.result: ${this.f} of ${this.frames} frames analysed`);
+    const voiced = [...this.voiced].sort((a, b) => a - b);
+    const mid = voiced.length >> 1;
+    const medianHz =
+      voiced.length === 0 ? null : voiced.length % 2 ? voiced[mid] : 0.5 * (voiced[mid - 1] + voiced[mid]);
+    const frames = this.frames;
+    return {
+      hopS: this.hop / this.fsA,
+      timesS: this.timesS,
+      f0Hz: this.f0Hz,
+      aperiodicity: this.aperiodicity,
+      medianHz,
+      voicedFraction: frames > 0 ? voiced.length / frames : 0,
+    };
+  }
 }
 
 /**
@@ -294,32 +386,33 @@ function refineFullRate(
   estimate: number,
   steps: number,
   minWindow: number,
+  length: number,
 ): number {
   const wr = Math.min(w, Math.max(Math.ceil(2 * estimate), minWindow));
   let tau = Math.round(estimate);
-  let here = diffAt(x, start, wr, tau);
-  let left = diffAt(x, start, wr, tau - 1);
-  let right = diffAt(x, start, wr, tau + 1);
+  let here = diffAt(x, length, start, wr, tau);
+  let left = diffAt(x, length, start, wr, tau - 1);
+  let right = diffAt(x, length, start, wr, tau + 1);
   for (let step = 0; step < steps; step++) {
     if (left < here) {
       right = here;
       here = left;
       tau--;
-      left = diffAt(x, start, wr, tau - 1);
+      left = diffAt(x, length, start, wr, tau - 1);
     } else if (right < here) {
       left = here;
       here = right;
       tau++;
-      right = diffAt(x, start, wr, tau + 1);
+      right = diffAt(x, length, start, wr, tau + 1);
     } else break;
   }
   if (!Number.isFinite(left) || !Number.isFinite(right) || !Number.isFinite(here)) return estimate;
   return tau + parabolaOffset(left, here, right);
 }
 
-/** d(τ) = Σ_{j<W}(x[s+j] − x[s+j+τ])² on the full-rate signal; Infinity when τ < 1 or past the end. */
-function diffAt(x: Float32Array, start: number, w: number, tau: number): number {
-  if (tau < 1 || start + w + tau > x.length) return Infinity;
+/** d(τ) = Σ_{j<W}(x[s+j] − x[s+j+τ])² on the full-rate signal (x[0…length) of it); Infinity when τ < 1 or past the end. */
+function diffAt(x: Float32Array, length: number, start: number, w: number, tau: number): number {
+  if (tau < 1 || start + w + tau > length) return Infinity;
   let s = 0;
   const end = start + w;
   for (let j = start; j < end; j++) {
@@ -327,4 +420,61 @@ function diffAt(x: Float32Array, start: number, w: number, tau: number): number 
     s += v * v;
   }
   return s;
+}
+
+/**
+ * {@link yinPitchTrack} block by block, for a signal whose length is known in advance and whose
+ * samples arrive in pieces (the modulation source of a file being decoded): `add` the next samples,
+ * in blocks of any lengths, then read `result()`. The frames are analysed as soon as their samples
+ * have arrived (YinTracker), and only the samples later frames may still read are kept, so memory is
+ * a block plus a stretch of about one decimation block (8192 decimated samples, ~65 000 samples at
+ * 44.1 kHz), not the signal. The track equals yinPitchTrack's on the whole signal exactly.
+ *
+ * @example const p = new PitchStream(n, 44100, { hopS: 0.02 }); p.add(a); p.add(b); p.result().medianHz
+ */
+export class PitchStream {
+  private readonly tracker: YinTracker;
+  private buf = new Float32Array(0);
+  /** Index in the whole signal of buf[0]; samples held: buf[0…filled). */
+  private base = 0;
+  private filled = 0;
+
+  /** @throws RangeError as yinPitchTrack for a bad sample rate or option */
+  constructor(
+    private readonly sampleCount: number,
+    sampleRate: number,
+    opts: YinOptions = {},
+  ) {
+    this.tracker = new YinTracker(sampleCount, sampleRate, opts);
+  }
+
+  /** Adds the next `len` samples (x[0…len)) and analyses the frames they complete. */
+  add(x: Float32Array, len = x.length): void {
+    if (this.base + this.filled + len > this.sampleCount) {
+      throw new RangeError(`PitchStream.add: more than the ${this.sampleCount} samples announced`);
+    }
+    const keep = Math.min(this.tracker.keepFrom(), this.base + this.filled);
+    if (keep > this.base) {
+      this.buf.copyWithin(0, keep - this.base, this.filled);
+      this.filled -= keep - this.base;
+      this.base = keep;
+    }
+    if (this.filled + len > this.buf.length) {
+      const grown = new Float32Array(Math.max(2 * this.buf.length, this.filled + len));
+      grown.set(this.buf.subarray(0, this.filled));
+      this.buf = grown;
+    }
+    this.buf.set(x.subarray(0, len), this.filled);
+    this.filled += len;
+    this.tracker.setInput(this.buf.subarray(0, this.filled), this.base);
+    this.tracker.advance(this.base + this.filled);
+  }
+
+  /** The pitch track; RangeError before every sample has arrived. */
+  result(): PitchTrack {
+    const received = this.base + this.filled;
+    if (received !== this.sampleCount) throw new RangeError(`PitchStream.result: ${received} of ${this.sampleCount} samples added`);
+    this.tracker.advance(this.sampleCount);
+    return this.tracker.result();
+  }
 }

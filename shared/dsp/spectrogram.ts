@@ -21,7 +21,7 @@
  */
 import { RealFft, isPowerOfTwo } from './fft.ts';
 import { hannWindow } from './window.ts';
-import { type WelchSpectrum, welchPsd, welchPsdGrouped } from './welch.ts';
+import { type WelchSpectrum, densityOf, loneSegment, segmentPairs, welchPsd, welchPsdGrouped } from './welch.ts';
 
 /** Options of {@link displaySpectrogram}; every field has a default. */
 export interface SpectrogramOptions {
@@ -279,63 +279,208 @@ export function welchSpectrogram(
   sampleRate: number,
   opts: WelchSpectrogramOptions = {},
 ): { welch: WelchSpectrum; spectrogram: DisplaySpectrogram } {
-  const fn = 'welchSpectrogram';
-  const n = signal.length;
+  const plan = sharingPlan('welchSpectrogram', signal.length, sampleRate, opts);
+  if (plan === null) {
+    return {
+      welch: welchPsd(signal, sampleRate, { size: opts.welchSize ?? 4096 }),
+      spectrogram: displaySpectrogram(signal, sampleRate, { ...opts, maxFramesPerColumn: opts.ownFramesPerColumn ?? 2 }),
+    };
+  }
+  const columns = new ColumnSums(plan, sampleRate);
+  // welchPsdGrouped adds each group's periodogram into the array returned here (its column's sums)
+  const welch = welchPsdGrouped(signal, sampleRate, plan.size, columns.groupSum);
+  return { welch, spectrogram: columns.finish() };
+}
+
+/** How Welch's segments fall into the display's columns, for a clip long enough to share them. */
+interface SharingPlan {
+  layout: RowLayout;
+  columns: number;
+  size: number;
+  hop: number;
+  segments: number;
+  /** Samples per column, n/columns. */
+  span: number;
+}
+
+/**
+ * The plan of welchSpectrogram for a clip of n samples, or null when it cannot share Welch's FFTs
+ * with the display (every column must receive a group of segments). Validates the options.
+ */
+function sharingPlan(fn: string, n: number, sampleRate: number, opts: WelchSpectrogramOptions): SharingPlan | null {
   const size = opts.welchSize ?? 4096;
   const layout = rowLayout(fn, n, sampleRate, opts);
   if (!isPowerOfTwo(size) || size < 4) throw new RangeError(`${fn}: opts.welchSize must be a power of two ≥ 4, got ${size}`);
-  const { rows, requested: columns } = layout;
+  const columns = layout.requested;
   const hop = size / 2;
   const segments = n < size ? 1 : Math.floor((n - size) / hop) + 1;
-  const span = n / columns;
-  // The column of the group of segments first…first+count−1 (as welchPsd hands them over), by its centre.
-  const columnOf = (first: number, count: number) => Math.min(columns - 1, Math.floor((first * hop + (size + (count - 1) * hop) / 2) / span));
+  const plan: SharingPlan = { layout, columns, size, hop, segments, span: n / columns };
   // Shared FFTs only if every column gets a group: groups' centres rise by `size`, so none may be
   // skipped, and the first and last columns must be reached.
   const groups = Math.ceil(segments / 2);
   const lastCount = segments % 2 === 0 ? 2 : 1;
   const shareable =
     n >= 2 * size &&
-    size <= span &&
-    columnOf(0, segments > 1 ? 2 : 1) === 0 &&
-    columnOf(2 * (groups - 1), lastCount) === columns - 1;
-  if (!shareable) {
-    return {
-      welch: welchPsd(signal, sampleRate, { size }),
-      spectrogram: displaySpectrogram(signal, sampleRate, { ...opts, maxFramesPerColumn: opts.ownFramesPerColumn ?? 2 }),
-    };
+    size <= plan.span &&
+    columnOf(plan, 0, segments > 1 ? 2 : 1) === 0 &&
+    columnOf(plan, 2 * (groups - 1), lastCount) === columns - 1;
+  return shareable ? plan : null;
+}
+
+/** The column of the group of segments first…first+count−1 (as welchPsd hands them over), by its centre. */
+const columnOf = (p: SharingPlan, first: number, count: number): number =>
+  Math.min(p.columns - 1, Math.floor((first * p.hop + (p.size + (count - 1) * p.hop) / 2) / p.span));
+
+/**
+ * The display's columns summed from Welch's groups of segments, which arrive in order:
+ * `groupSum(first, count)` gives the sums the group's periodogram is to be added to (its column's,
+ * the previous column written out when a new one begins); `finish()` writes the last and returns the
+ * spectrogram.
+ */
+class ColumnSums {
+  private readonly acc: Float64Array;
+  private readonly means: Float64Array;
+  private readonly timesS: Float64Array;
+  private readonly db: Float32Array;
+  private readonly sumW2: number;
+  private readonly binHz: number;
+  private column = 0;
+  private frames = 0;
+  private fewest = Infinity;
+
+  constructor(
+    private readonly plan: SharingPlan,
+    private readonly sampleRate: number,
+  ) {
+    const { size, layout, columns } = plan;
+    const w = hannWindow(size);
+    let sumW2 = 0;
+    for (let i = 0; i < size; i++) sumW2 += w[i] * w[i];
+    this.sumW2 = sumW2;
+    this.binHz = sampleRate / size;
+    this.acc = new Float64Array(size / 2 + 1);
+    this.means = new Float64Array(layout.rows);
+    this.timesS = new Float64Array(columns);
+    this.db = new Float32Array(columns * layout.rows);
   }
 
-  const bins = size / 2 + 1;
-  const w = hannWindow(size);
-  let sumW2 = 0;
-  for (let i = 0; i < size; i++) sumW2 += w[i] * w[i];
-  const binHz = sampleRate / size;
-  const acc = new Float64Array(bins);
-  const means = new Float64Array(rows);
-  const timesS = new Float64Array(columns);
-  const db = new Float32Array(columns * rows);
-  let column = 0;
-  let frames = 0;
-  let fewest = Infinity;
-  const finish = () => {
-    writeColumn(acc, frames, sampleRate, sumW2, binHz, layout, means, db, column);
-    timesS[column] = ((column + 0.5) * span) / sampleRate;
-    fewest = Math.min(fewest, frames);
-    acc.fill(0);
-    frames = 0;
-  };
-  // welchPsdGrouped adds each group's periodogram into the array returned here (its column's sums)
-  const welch = welchPsdGrouped(signal, sampleRate, size, (first, count) => {
-    const c = columnOf(first, count);
-    if (c !== column) {
-      finish();
-      column = c;
+  private write(): void {
+    const { plan, column } = this;
+    writeColumn(this.acc, this.frames, this.sampleRate, this.sumW2, this.binHz, plan.layout, this.means, this.db, column);
+    this.timesS[column] = ((column + 0.5) * plan.span) / this.sampleRate;
+    this.fewest = Math.min(this.fewest, this.frames);
+    this.acc.fill(0);
+    this.frames = 0;
+  }
+
+  readonly groupSum = (first: number, count: 1 | 2): Float64Array => {
+    const c = columnOf(this.plan, first, count);
+    if (c !== this.column) {
+      this.write();
+      this.column = c;
     }
-    frames += count;
-    return acc;
-  });
-  finish();
-  const { edgesHz, frequenciesHz } = layout;
-  return { welch, spectrogram: { timesS, frequenciesHz, edgesHz, db, columns, rows, framesPerColumn: fewest, size } };
+    this.frames += count;
+    return this.acc;
+  };
+
+  finish(): DisplaySpectrogram {
+    this.write();
+    const { layout, columns, size } = this.plan;
+    const { edgesHz, frequenciesHz, rows } = layout;
+    return { timesS: this.timesS, frequenciesHz, edgesHz, db: this.db, columns, rows, framesPerColumn: this.fewest, size };
+  }
+}
+
+/**
+ * {@link welchSpectrogram} block by block, for a clip whose length is known in advance and whose
+ * samples arrive in pieces (the modulation source of a file being decoded): `add` the next samples,
+ * in blocks of any lengths, then read `result()`. When the clip shares Welch's FFTs with the display,
+ * the segments go through the FFT in the same pairs, in the same order, into the same sums, as soon
+ * as a stretch of them is complete, so both results equal welchSpectrogram's exactly; memory is one
+ * stretch of 64 pairs of segments (~0.5 M samples at 4096). A clip too short to share (under ~93 s at
+ * 44.1 kHz) is kept whole and handed to welchSpectrogram at the end.
+ *
+ * @example const s = new WelchSpectrogramStream(n, 44100); s.add(a); s.add(b); s.result().welch.segments
+ */
+export class WelchSpectrogramStream {
+  private readonly plan: SharingPlan | null;
+  /** Samples from the start of segment `next` on (or the whole clip when not sharing). */
+  private buf: Float32Array;
+  private filled = 0;
+  private received = 0;
+  /** First segment not yet transformed (even while pairs remain). */
+  private next = 0;
+  private readonly fft: RealFft | null = null;
+  private readonly w: Float64Array = new Float64Array(0);
+  private readonly z: Float64Array = new Float64Array(0);
+  private readonly acc: Float64Array = new Float64Array(0);
+  private readonly columns: ColumnSums | null = null;
+
+  /** @throws RangeError as welchSpectrogram for bad options or an empty clip */
+  constructor(
+    private readonly sampleCount: number,
+    private readonly sampleRate: number,
+    private readonly opts: WelchSpectrogramOptions = {},
+    /** Segment pairs per stretch. */
+    pairsPerStretch = 64,
+  ) {
+    this.plan = sharingPlan('WelchSpectrogramStream', sampleCount, sampleRate, opts);
+    const p = this.plan;
+    if (p === null) {
+      this.buf = new Float32Array(sampleCount);
+      return;
+    }
+    this.buf = new Float32Array(p.size + (2 * pairsPerStretch - 1) * p.hop);
+    this.fft = new RealFft(p.size);
+    this.w = hannWindow(p.size);
+    this.z = new Float64Array(2 * p.size);
+    this.acc = new Float64Array(this.fft.bins);
+    this.columns = new ColumnSums(p, sampleRate);
+  }
+
+  /** Adds the next `len` samples (x[0…len)). */
+  add(x: Float32Array, len = x.length): void {
+    if (this.received + len > this.sampleCount) {
+      throw new RangeError(`WelchSpectrogramStream.add: more than the ${this.sampleCount} samples announced`);
+    }
+    let i = 0;
+    while (i < len) {
+      const take = Math.min(len - i, this.buf.length - this.filled);
+      this.buf.set(x.subarray(i, i + take), this.filled);
+      this.filled += take;
+      this.received += take;
+      i += take;
+      if (this.filled === this.buf.length) this.transform();
+    }
+  }
+
+  /** Transforms every whole pair of segments in the buffer, then keeps the samples from the next segment on. */
+  private transform(): void {
+    const p = this.plan;
+    if (p === null) return;
+    const start = this.next * p.hop; // sample index of buf[0]
+    // pairs (s, s + 1) whose second segment has fully arrived, and never the lone last one
+    let s1 = this.next;
+    while (s1 + 1 < p.segments && (s1 + 1) * p.hop + p.size <= this.received) s1 += 2;
+    if (s1 === this.next) return;
+    segmentPairs(this.fft!, this.z, this.buf, start, p.hop, this.w, this.next, s1, this.acc, this.columns!.groupSum);
+    const keepFrom = s1 * p.hop - start;
+    this.buf.copyWithin(0, keepFrom, this.filled);
+    this.filled -= keepFrom;
+    this.next = s1;
+  }
+
+  /** Welch's spectrum and the display spectrogram; RangeError before every sample has arrived. */
+  result(): { welch: WelchSpectrum; spectrogram: DisplaySpectrogram } {
+    if (this.received !== this.sampleCount) throw new RangeError(`WelchSpectrogramStream.result: ${this.received} of ${this.sampleCount} samples added`);
+    const p = this.plan;
+    if (p === null) return welchSpectrogram(this.buf, this.sampleRate, this.opts);
+    this.transform();
+    if (this.next < p.segments) {
+      loneSegment(this.fft!, this.buf, this.next * p.hop, this.next, p.hop, this.w, new Float64Array(this.fft!.bins), this.acc, undefined, this.columns!.groupSum);
+    }
+    let sumW2 = 0;
+    for (let i = 0; i < p.size; i++) sumW2 += this.w[i] * this.w[i];
+    return { welch: densityOf(this.acc, p.segments, this.sampleRate, sumW2, p.size), spectrogram: this.columns!.finish() };
+  }
 }

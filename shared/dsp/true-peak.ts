@@ -282,7 +282,14 @@ export interface TruePeakReport {
  */
 export function measureTruePeak(channels: Float32Array[], sampleRate: number): TruePeakReport {
   checkChannels('measureTruePeak', channels, sampleRate);
-  const perChannelLinear = channels.map(channelTruePeakLinear);
+  return truePeakReport(channels.map(channelTruePeakLinear));
+}
+
+/**
+ * The report of channels whose true peaks (linear full scale) are known: the highest, and in dBTP.
+ * @example truePeakReport([0.5, 0.25]).truePeakDbtp // −6.02
+ */
+export function truePeakReport(perChannelLinear: number[]): TruePeakReport {
   const truePeakLinear = Math.max(...perChannelLinear);
   return { truePeakLinear, truePeakDbtp: ampToDb(truePeakLinear), perChannelLinear };
 }
@@ -313,7 +320,14 @@ export class TruePeakMeter {
     this.ended = false;
   }
 
-  /** Adds the next samples (finite values, full scale ±1). */
+  /** Block maxima of the block being added (grown as needed). */
+  private blockMax = new Float32Array(0);
+
+  /**
+   * Adds the next samples (finite values, full scale ±1). The block's maxima over runs of 16
+   * inputs and its sample peak come first (blockMaximaByBits, as channelTruePeakLinear's pass 1),
+   * so the running maximum the skip tests against already holds the block's own sample peak.
+   */
   add(block: Float32Array): void {
     if (this.ended) throw new RangeError('TruePeakMeter.add: the signal was ended by value(); reset() first');
     const h = TAPS - 1;
@@ -325,14 +339,33 @@ export class TruePeakMeter {
       this.buf = grown;
     }
     const buf = this.buf;
-    buf.set(block, h);
-    let sp = this.samplePeak;
-    for (let i = 0; i < len; i++) {
-      const a = Math.abs(block[i]);
-      if (a > sp) sp = a;
+    // the largest |x| among the 11 samples of history, before they are overwritten
+    let previous = 0;
+    for (let i = 0; i < h; i++) {
+      const a = Math.abs(buf[i]);
+      if (a > previous) previous = a;
     }
-    this.samplePeak = sp;
-    this.filterRange(buf, h + len);
+    buf.set(block, h);
+    const runs = Math.ceil(len / CHUNK);
+    if (this.blockMax.length < runs + 1) this.blockMax = new Float32Array(runs + 1);
+    const blockMax = this.blockMax;
+    let sp = len <= MAX_BITS_PASS_LENGTH ? blockMaximaByBits(block, blockMax) : Number.NaN;
+    if (Number.isNaN(sp)) sp = blockMaximaPlain(block, blockMax);
+    if (sp > this.samplePeak) this.samplePeak = sp;
+    // Run r: outputs at buffer positions h + 16r … h + 16r + 15, reading inputs 16r … h + 16r + 15,
+    // i.e. block run r and the 11 inputs before it (the end of run r − 1, or the history).
+    const bound = ABS_TAP_SUM_BOUND;
+    let run = Math.max(this.run, this.samplePeak);
+    let before = previous * bound;
+    for (let r = 0; r < runs; r++) {
+      const current = blockMax[r] * bound;
+      if (current > run || before > run) {
+        const start = h + r * CHUNK;
+        run = filteredPeak(buf, start, Math.min(start + CHUNK, h + len), run);
+      }
+      before = current;
+    }
+    this.run = run;
     buf.copyWithin(0, len, len + h);
   }
 

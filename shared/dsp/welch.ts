@@ -158,30 +158,76 @@ function welchCore(
   // (zero-padded to size), goes alone. Unless a hook must see each pair's periodogram on its own,
   // the periodogram is added into the sums (and the group's) in the transform's unpacking pass.
   const z = new Float64Array(2 * size);
-  let s = 0;
-  for (; s + 1 < segments; s += 2) {
-    windowPair(z, signal, s * hop, s * hop + hop, w, size);
-    if (onSegments !== undefined) {
+  const pairsEnd = segments - (segments % 2);
+  if (onSegments !== undefined) {
+    for (let s = 0; s < pairsEnd; s += 2) {
+      windowPair(z, signal, s * hop, s * hop + hop, w, size);
       fft.pairedPower(z, power);
       addInto(acc, power);
       onSegments(s, 2, power);
-    } else {
-      fft.accumulatePairedPower(z, acc, groupSum?.(s, 2));
     }
+  } else {
+    segmentPairs(fft, z, signal, 0, hop, w, 0, pairsEnd, acc, groupSum);
   }
-  if (s < segments) {
-    const seg = new Float64Array(size);
-    for (let i = 0; i < segLen; i++) seg[i] = signal[s * hop + i] * w[i];
-    fft.powerSpectrum(seg, power);
-    addInto(acc, power);
-    onSegments?.(s, 1, power);
-    if (groupSum !== undefined) addInto(groupSum(s, 1), power);
-  }
+  if (pairsEnd < segments) loneSegment(fft, signal, 0, pairsEnd, hop, w, power, acc, onSegments, groupSum);
   return densityOf(acc, segments, sampleRate, sumW2, size);
 }
 
+/**
+ * The periodograms of segment pairs (s, s + 1), s = s0, s0 + 2, … < s1 (s1 − s0 even), of a signal whose sample i
+ * is x[i − base], added into acc and into groupSum(s, 2) in the transform's unpacking pass
+ * (RealFft.accumulatePairedPower): welchCore's loop, and WelchSpectrogramStream's (spectrogram.ts)
+ * over a signal that arrives in blocks. Kernel: trusts its inputs.
+ *
+ * @param w the window, fft.size values
+ */
+export function segmentPairs(
+  fft: RealFft,
+  z: Float64Array,
+  x: Float32Array,
+  base: number,
+  hop: number,
+  w: Float64Array,
+  s0: number,
+  s1: number,
+  acc: Float64Array,
+  groupSum: ((first: number, count: 1 | 2) => Float64Array) | undefined,
+): void {
+  const size = fft.size;
+  for (let s = s0; s < s1; s += 2) {
+    windowPair(z, x, s * hop - base, s * hop + hop - base, w, size);
+    fft.accumulatePairedPower(z, acc, groupSum?.(s, 2));
+  }
+}
+
+/**
+ * Segment s alone (an odd last one, or a signal shorter than one segment: w then as long as the
+ * signal, zero-padded to the FFT size), its periodogram added into acc, then handed to onSegments
+ * and added into groupSum(s, 1). Kernel: trusts its inputs.
+ */
+export function loneSegment(
+  fft: RealFft,
+  x: Float32Array,
+  base: number,
+  s: number,
+  hop: number,
+  w: Float64Array,
+  power: Float64Array,
+  acc: Float64Array,
+  onSegments: WelchOptions['onSegments'],
+  groupSum: ((first: number, count: 1 | 2) => Float64Array) | undefined,
+): void {
+  const seg = new Float64Array(fft.size);
+  const from = s * hop - base;
+  for (let i = 0; i < w.length; i++) seg[i] = x[from + i] * w[i];
+  fft.powerSpectrum(seg, power);
+  addInto(acc, power);
+  onSegments?.(s, 1, power);
+  if (groupSum !== undefined) addInto(groupSum(s, 1), power);
+}
+
 /** The Welch spectrum from the summed periodograms of `segments` segments (module comment's scaling). */
-function densityOf(acc: Float64Array, segments: number, sampleRate: number, sumW2: number, size: number): WelchSpectrum {
+export function densityOf(acc: Float64Array, segments: number, sampleRate: number, sumW2: number, size: number): WelchSpectrum {
   const bins = acc.length;
   const binHz = sampleRate / size;
   const psd = new Float64Array(bins);

@@ -8,6 +8,7 @@ import {
   analyzeSpectrumPart,
   combineAnalysis,
   resolveAnalyzeSettings,
+  shapeOf,
 } from '../../../shared/analysis/analyze-clip.ts';
 import { channelFigures, runChannelTask, runSourceTask, sourceIsTheClip } from '../../../shared/analysis/tasks.ts';
 import { modulationSource } from '../../../shared/audio/clip.ts';
@@ -22,7 +23,7 @@ describe('parts and tasks compose to analyzeClip', () => {
     for (const channel of ['mix', 'left', 'right'] as const) {
       const s = resolveAnalyzeSettings(clip, { channel });
       const src = modulationSource(clip, channel);
-      const whole = combineAnalysis(clip, s, analyzeChannelPart(clip, src, s), analyzeSpectrumPart(src, FS, s));
+      const whole = combineAnalysis(shapeOf(clip), s, analyzeChannelPart(clip, src, s), analyzeSpectrumPart(src, FS, s));
       expect(whole).toEqual(analyzeClip(clip, { channel }));
     }
   });
