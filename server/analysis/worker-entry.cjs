@@ -8,7 +8,9 @@
 // back to analysing alone.
 'use strict';
 const { parentPort } = require('node:worker_threads');
-require('tsx/cjs/api').register();
-const { serveAnalysisJobs } = require('./worker-tasks.ts');
+// The prebuilt worker when the command line runs prebuilt (../prebuilt.cjs), else the sources.
+const prebuilt = require('../prebuilt.cjs').prebuiltWorker('analysis-worker.cjs');
+if (!prebuilt) require('tsx/cjs/api').register();
+const { serveAnalysisJobs } = prebuilt ?? require('./worker-tasks.ts');
 
 serveAnalysisJobs(parentPort);

@@ -6,7 +6,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import type { AnalysisJob, WorkerReply } from './worker-tasks.ts';
+import type { AnalysisJob, StreamJob, WorkerReply } from './worker-tasks.ts';
 
 const WORKER_ENTRY = new URL('./worker-entry.cjs', import.meta.url);
 
@@ -70,7 +70,7 @@ export class AnalysisWorker {
   }
 
   /** Sends the one job this worker will do; replies go to `onReply`. False (and nothing sent) if not available. */
-  submit(job: AnalysisJob, onReply: (m: Reply) => void): boolean {
+  submit(job: AnalysisJob | StreamJob, onReply: (m: Reply) => void): boolean {
     if (!this.available || !this.worker) return false;
     this.submitted = true;
     this.onReply = onReply;

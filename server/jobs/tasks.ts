@@ -6,7 +6,6 @@
  * here, so the main thread writes a row only for a file that is complete.
  */
 import type { MessagePort } from 'node:worker_threads';
-import { zeroCrossingEvents } from '../../shared/plan/pulse-train.ts';
 import { planSettings } from '../../shared/plan/evaluate.ts';
 import type { CoilProfile } from '../../shared/schemas/coil.ts';
 import type { DriverProfile } from '../../shared/schemas/driver.ts';
@@ -79,13 +78,12 @@ async function run(task: Task): Promise<unknown> {
   const progress = reporter(task.port);
   switch (task.kind) {
     case 'analysis': {
-      const { analysis, source } = await loadAndAnalyze(task.clipPath, {
+      const { analysis, pulseEvents } = await loadAndAnalyze(task.clipPath, {
         channel: task.channel,
         frameS: task.frameS,
         onProgress: (f, s) => progress(0.97 * f, s === 'done' ? 'analysed' : s),
       });
       progress(0.98, 'storing');
-      const pulseEvents = zeroCrossingEvents(source, analysis.sampleRate);
       try {
         await writeReductions(task.tmpPath, { analysis, pulseEvents } satisfies StoredReductions);
         await commitFile(task.tmpPath, task.finalPath);

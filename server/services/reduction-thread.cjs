@@ -4,8 +4,12 @@
 // explains.
 'use strict';
 const { parentPort } = require('node:worker_threads');
-require('tsx/cjs/api').register();
-require('../typebox-bundle.cjs').install(); // TypeBox from one file (the file says why)
-const { serveReductions } = require('./reduction-serve.ts');
+// The prebuilt worker when the command line runs prebuilt (../prebuilt.cjs), else the sources.
+const prebuilt = require('../prebuilt.cjs').prebuiltWorker('reduction-worker.cjs');
+if (!prebuilt) {
+  require('tsx/cjs/api').register();
+  require('../typebox-bundle.cjs').install(); // TypeBox from one file (the file says why)
+}
+const { serveReductions } = prebuilt ?? require('./reduction-serve.ts');
 
 serveReductions(parentPort);

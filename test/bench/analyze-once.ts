@@ -1,62 +1,36 @@
 /**
- * Child process of the benchmark: decodes and analyses one file the way the analyze command does
- * (server/cli/commands/analyze.ts, analyzeFile: the analysis worker started before decoding, the
- * channels decoded into shared memory, analyzeClipParallel with the channels given up, so the mix
- * goes over channel 0), then prints its own timings and peak resident memory as JSON. Run alone so
- * the memory figure is the analysis's, not the generator's.
+ * Child process of the benchmark: analyses one file the way the analyze command does
+ * (server/services/analysis.ts, analyzeFile: the analysis worker started first, the file analysed
+ * in one pass as it is decoded, the source part on the worker), then prints its own timings and
+ * peak resident memory as JSON. Run alone so the memory figure is the analysis's, not the
+ * generator's. It runs the sources through tsx (not the command line's prebuilt bundles), so its
+ * times include some compiling: they say where the time goes, the command's figure is the measure.
  *
- * `--sequential` times analyzeClip on one thread instead (no worker), for comparison.
- * Output: decodeMs, analyzeMs, totalMs (from before the worker start to the result), stagesMs
- * (each task's duration, keyed "thread:task" in the parallel run, by stage in the sequential one),
- * timeline (each task's start and end, ms from the start of the analysis), durationS, maxRssMiB.
+ * `--sequential` runs the source part on this thread too (no worker), for comparison.
+ * Output: totalMs (from before the worker start to the result), decodeMs (to the end of decoding,
+ * with the channel part, which runs as each block arrives), sourcePart (where it ran, and its start
+ * and end in ms from the start), maxRssMiB.
  */
-import { analyzeClipParallel, startAnalysisWorker } from '../../server/analysis/analyze-parallel.ts';
-import { decodeAudioFile } from '../../server/audio/decode.ts';
-import { analyzeClip } from '../../shared/analysis/analyze-clip.ts';
+import { analyzeFileStream } from '../../server/analysis/analyze-stream.ts';
+import { AnalysisWorker, startAnalysisWorker } from '../../server/analysis/worker-handle.ts';
 import { peakRssKiB } from './peak-rss.cjs';
 
-/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.cjs runs the product). */
+/** Run by test/bench/child.mjs (tsx's CommonJS hook, as bin/coilcue.cjs runs the product without its bundles). */
 export async function main(): Promise<void> {
   const file = process.argv[2];
   const sequential = process.argv.includes('--sequential');
   const t0 = performance.now();
-  const worker = sequential ? undefined : startAnalysisWorker();
-  const clip = await decodeAudioFile(file, { sharedChannels: !sequential });
-  const t1 = performance.now();
-  const stages: Record<string, number> = {};
-  const timeline: string[] = [];
-  if (sequential) {
-    let last = t1;
-    let lastStage = '';
-    analyzeClip(clip, {
-      onProgress: (_f, stage) => {
-        const now = performance.now();
-        if (lastStage) stages[lastStage] = now - last;
-        last = now;
-        lastStage = stage;
-      },
-    });
-  } else {
-    const origin = performance.timeOrigin + t1;
-    await analyzeClipParallel(clip, {
-      worker,
-      donateChannels: true,
-      onTask: (t) => {
-        stages[`${t.thread}:${t.task}`] = t.endMs - t.startMs;
-        timeline.push(`${t.thread} ${t.task} ${(t.startMs - origin).toFixed(0)}–${(t.endMs - origin).toFixed(0)}`);
-      },
-    });
-  }
-  const t2 = performance.now();
-  process.stdout.write(
-    JSON.stringify({
-      decodeMs: t1 - t0,
-      analyzeMs: t2 - t1,
-      totalMs: t2 - t0,
-      stagesMs: stages,
-      timeline,
-      durationS: clip.channels[0].length / clip.sampleRate,
-      maxRssMiB: peakRssKiB() / 1024,
-    }) + '\n',
-  );
+  const origin = performance.timeOrigin + t0;
+  const worker = sequential ? new AnalysisWorker(null) : startAnalysisWorker();
+  let decodedMs = 0;
+  let sourcePart = { where: '', startMs: 0, endMs: 0 };
+  await analyzeFileStream(file, {
+    worker,
+    onProgress: (_f, stage) => {
+      if (stage !== 'analysing' && decodedMs === 0) decodedMs = performance.now() - t0;
+    },
+    onSourcePart: (where, a, b) => (sourcePart = { where, startMs: a - origin, endMs: b - origin }),
+  });
+  const totalMs = performance.now() - t0;
+  process.stdout.write(JSON.stringify({ totalMs, decodeMs: decodedMs || sourcePart.startMs, sourcePart, maxRssMiB: peakRssKiB() / 1024 }) + '\n');
 }

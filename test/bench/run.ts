@@ -12,8 +12,8 @@
  * of our runs over the ffmpeg run right after it. Targets (from the project's issue on the analysis
  * engine): ratio ≤ 0.8 (both must meet it), peak RSS < 256 MiB.
  *
- * For diagnosis it then prints, from one in-process run (analyze-once.ts), the decoding and
- * analysis times and where and when each task ran, and one run on a single thread (analyzeClip).
+ * For diagnosis it then prints, from one in-process run (analyze-once.ts), when decoding (with the
+ * channel part) ended and when the source part ran on the worker, and the same on one thread.
  *
  * Parts: `npm run bench -- [analyze] [plan] [engine] [server] [web]` runs only those (all by
  * default); the server part alone times the command line's analyze three times as its reference.
@@ -82,7 +82,7 @@ try {
     ffCpu.push(secs.length === 2 ? secs[0] + secs[1] : Number.NaN);
     return s;
   };
-  command(); // a first run compiles the TypeScript into tsx's cache, as any earlier use of the tool has
+  command(); // a first run builds the command line's bundles (server/prebuilt.cjs), as any earlier use of the tool has
   if (!part('analyze')) {
     if (part('plan')) await runPlanBench(wav);
     if (part('engine')) await runEngineBench(dir, wav);
@@ -119,19 +119,14 @@ try {
     console.log('ffmpeg not on PATH: ratio not measured (apt-get install -y ffmpeg to compare)');
   }
 
-  interface Run { totalMs: number; decodeMs: number; analyzeMs: number; maxRssMiB: number; stagesMs: Record<string, number>; timeline: string[] }
+  interface Run { totalMs: number; decodeMs: number; sourcePart: { where: string; startMs: number; endMs: number }; maxRssMiB: number }
   const once = (...extra: string[]): Run =>
     JSON.parse(execFileSync(process.execPath, [join(here, 'child.mjs'), join(here, 'analyze-once.ts'), wav, ...extra], { encoding: 'utf8' }));
-  const inProcess = once();
-  console.log(
-    `in process (analyze-once.ts): decode ${(inProcess.decodeMs / 1000).toFixed(3)} s, analysis ${(inProcess.analyzeMs / 1000).toFixed(3)} s, peak RSS ${inProcess.maxRssMiB.toFixed(1)} MiB`,
-  );
-  console.log(`  tasks (ms from the end of decoding): ${inProcess.timeline.join(', ')}`);
-  const seq = once('--sequential');
-  console.log(
-    `one thread (analyzeClip), for comparison: ${(seq.totalMs / 1000).toFixed(3)} s, peak RSS ${seq.maxRssMiB.toFixed(1)} MiB; ` +
-      `stages ${Object.entries(seq.stagesMs).map(([k, v]) => `${k} ${v.toFixed(0)} ms`).join(', ')}`,
-  );
+  const show = (r: Run) =>
+    `${(r.totalMs / 1000).toFixed(3)} s; decoding with the channel part to ${(r.decodeMs / 1000).toFixed(3)} s, ` +
+    `source part on the ${r.sourcePart.where} thread ${(r.sourcePart.startMs / 1000).toFixed(3)}–${(r.sourcePart.endMs / 1000).toFixed(3)} s; peak RSS ${r.maxRssMiB.toFixed(1)} MiB`;
+  console.log(`in process, through tsx (analyze-once.ts): ${show(once())}`);
+  console.log(`one thread, for comparison: ${show(once('--sequential'))}`);
 
   if (part('plan')) await runPlanBench(wav);
   if (part('engine')) await runEngineBench(dir, wav);

@@ -5,7 +5,7 @@
 // it, so every sum runs over the same samples in the same order as in one pass.
 import { describe, expect, it } from 'vitest';
 import { analyzeClip, settingsForShape, shapeOf, combineAnalysis } from '../../../shared/analysis/analyze-clip.ts';
-import { ChannelPartStream, SpectrumPartStream } from '../../../shared/analysis/stream.ts';
+import { ChannelPartStream, SourcePartStream } from '../../../shared/analysis/stream.ts';
 import type { AnalyzeOptions, ClipAnalysis } from '../../../shared/analysis/types.ts';
 import { type AudioClip, modulationSource } from '../../../shared/audio/clip.ts';
 import { synthLongDemo } from '../../../shared/demo/clips.ts';
@@ -22,17 +22,18 @@ function streamed(clip: AudioClip, blocks: number[], opts: AnalyzeOptions = {}):
   const s = settingsForShape(shape, opts);
   const source = modulationSource(clip, s.channel);
   const channel = new ChannelPartStream(shape, s);
-  const spectrum = new SpectrumPartStream(shape.sampleCount, clip.sampleRate, s);
+  const sourcePart = new SourcePartStream(shape.sampleCount, clip.sampleRate, s, shape.channelCount > 1);
   for (let at = 0, k = 0; at < shape.sampleCount; k++) {
     const len = Math.min(blocks[k % blocks.length], shape.sampleCount - at);
     // each block in arrays of its own, as a decoder hands them over
     const chs = clip.channels.map((c) => c.slice(at, at + len));
     const src = source.slice(at, at + len);
     channel.add(chs, len, src);
-    spectrum.add(src);
+    sourcePart.add(src);
     at += len;
   }
-  return combineAnalysis(shape, s, channel.result(), spectrum.result());
+  const { levels, spectrum } = sourcePart.result();
+  return combineAnalysis(shape, s, channel.result(levels), spectrum);
 }
 
 const FS = 44100;
