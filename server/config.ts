@@ -39,8 +39,8 @@ export interface ServerConfig {
 
 /**
  * Jobs at once by default: half the cores (at least one). One analysis already keeps two threads
- * busy (server/analysis/analyze-parallel.ts), so a second one at once on two cores would only
- * double the memory (≈ 250 MiB each for 5 minutes of stereo) without finishing either sooner.
+ * busy (server/analysis/analyze-stream.ts), so a second one at once on two cores would only
+ * double the memory without finishing either sooner.
  */
 export const defaultJobThreads = (): number => Math.max(1, Math.floor(availableParallelism() / 2));
 

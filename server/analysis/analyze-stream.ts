@@ -26,7 +26,7 @@ import type { AnalyzeOptions, AnalyzeSettings, ClipAnalysis, ClipShape } from '.
 import { InputError } from '../../shared/errors.ts';
 import { type DecodedClip, decodeAudioFile } from '../audio/decode.ts';
 import { RingWriter } from '../services/sample-ring.ts';
-import { writeModulationSource } from './shared-source.ts';
+import { writeModulationSource } from './modulation-source.ts';
 import { AnalysisWorker, type Reply, startAnalysisWorker } from './worker-handle.ts';
 import { type StreamJob, epochMs } from './worker-tasks.ts';
 

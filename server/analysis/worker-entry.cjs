@@ -1,4 +1,4 @@
-// Entry of the analysis worker thread (see analyze-parallel.ts).
+// Entry of the analysis worker thread (see analyze-stream.ts and worker-tasks.ts).
 //
 // Why a CommonJS file: Node 20 does not carry a loader into worker threads, and tsx's ESM hooks in
 // a worker start one more hooks thread (another isolate, measured ~4 MiB more). tsx's CommonJS

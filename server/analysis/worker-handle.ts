@@ -1,12 +1,12 @@
 /**
- * The analysis worker thread as the main thread holds it (analyze-parallel.ts gives it its job).
+ * The analysis worker thread as the main thread holds it (analyze-stream.ts gives it its job).
  * Kept apart from the analysis modules so a command can start the worker before loading them:
  * the thread loads its own modules meanwhile (~0.15 s on an idle machine, measured), and the
  * command's loading and decoding overlap that.
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import type { AnalysisJob, StreamJob, WorkerReply } from './worker-tasks.ts';
+import type { StreamJob, WorkerReply } from './worker-tasks.ts';
 
 const WORKER_ENTRY = new URL('./worker-entry.cjs', import.meta.url);
 
@@ -14,7 +14,7 @@ const WORKER_ENTRY = new URL('./worker-entry.cjs', import.meta.url);
 export type Reply = WorkerReply | { type: 'gone' };
 
 /**
- * A worker thread for one analysis (analyzeClipParallel). It begins loading at once; until a job is
+ * A worker thread for one analysis (analyzeFileStream). It begins loading at once; until a job is
  * submitted it does not keep the process alive. `available` is false once it has failed, been
  * terminated or been given its job.
  *
@@ -70,7 +70,7 @@ export class AnalysisWorker {
   }
 
   /** Sends the one job this worker will do; replies go to `onReply`. False (and nothing sent) if not available. */
-  submit(job: AnalysisJob | StreamJob, onReply: (m: Reply) => void): boolean {
+  submit(job: StreamJob, onReply: (m: Reply) => void): boolean {
     if (!this.available || !this.worker) return false;
     this.submitted = true;
     this.onReply = onReply;
@@ -106,12 +106,12 @@ export function prestartAnalysisWorker(): void {
 }
 
 /**
- * A worker for analyzeClipParallel: the one prestartAnalysisWorker() started, if it is still
+ * A worker for analyzeFileStream: the one prestartAnalysisWorker() started, if it is still
  * available, or a new one; do it before decoding so its start-up overlaps the decoding. Never
  * throws: a worker that cannot start only makes the analysis single-threaded. On a machine with one
  * core no thread is started (it could only slow the analysis down).
  *
- * @example const worker = startAnalysisWorker(); const clip = await decodeAudioFile(f); await analyzeClipParallel(clip, { worker })
+ * @example const worker = startAnalysisWorker(); await analyzeFileStream(file, { worker })
  */
 export function startAnalysisWorker(): AnalysisWorker {
   const w = early;

@@ -46,16 +46,9 @@ export interface DecodeOptions {
    * Called as decoded frames become final: frames from…to−1 of every channel, in order, each frame
    * once (a WAV block by block, other formats all at once at the end). For work that is cheapest
    * while a block is fresh in the cache, such as writing the modulation mix for the analysis worker
-   * (server/analysis/shared-source.ts). An error it throws ends the decoding.
+   * (server/analysis/modulation-source.ts). An error it throws ends the decoding.
    */
   onFrames?(channels: Float32Array[], from: number, to: number): void;
-  /**
-   * Put a WAV file's channels in shared memory (each its own SharedArrayBuffer), so a worker thread
-   * can read them without a copy (server/analysis/analyze-parallel.ts). Other formats are decoded in
-   * a worker and arrive in ordinary memory whatever this says. Web Audio refuses shared memory
-   * (copyToChannel), so a clip for the renderer must not ask for it. Default false.
-   */
-  sharedChannels?: boolean;
   /**
    * Called once, before the first `onFrames`, with the clip's length in frames, its channel count
    * and sample rate (for a caller that sizes its own arrays).
@@ -100,7 +93,7 @@ interface Resolved {
   onStart(frames: number, channelCount: number, sampleRate: number): void;
   discardSamples: boolean;
   progress(f: number): void;
-  /** `count` channels of `frames` samples, in shared memory if the caller asked for it. */
+  /** `count` channels of `frames` samples. */
   allocate(count: number, frames: number): Float32Array[];
 }
 
@@ -122,8 +115,7 @@ function resolveOptions(opts: DecodeOptions | undefined): Resolved {
     onFrames: o.onFrames ? (c, from, to) => o.onFrames!(c, from, to) : () => undefined,
     onStart: o.onStart ? (n, c, fs) => o.onStart!(n, c, fs) : () => undefined,
     discardSamples: o.discardSamples === true,
-    allocate: (count, frames) =>
-      Array.from({ length: count }, () => (o.sharedChannels ? new Float32Array(new SharedArrayBuffer(4 * frames)) : new Float32Array(frames))),
+    allocate: (count, frames) => Array.from({ length: count }, () => new Float32Array(frames)),
     progress(f) {
       const c = Math.min(1, Math.max(last, f));
       if (c === last && c !== 0) return;

@@ -6,7 +6,7 @@
  * new work (QueueFullError → 503 with Retry-After).
  *
  * What runs where: a job thread decodes the clip and runs the analysis, which itself uses a second
- * thread (server/analysis/analyze-parallel.ts), so one analysis keeps two cores busy; the pool is
+ * thread (server/analysis/analyze-stream.ts), so one analysis keeps two cores busy; the pool is
  * sized to the cores, so two analyses at once share them. Gain searches for new plans also run in
  * the pool (awaited by the request, not rows); a re-evaluation at a gain is fast enough to run in
  * the event loop (server/services/stored-plan.ts).

@@ -20,8 +20,8 @@ export async function renderGraph(mono: Float32Array, sampleRate: number, gainDb
   if (n === 0) return new Float32Array(0);
   const ctx = new OfflineAudioContext(1, n, sampleRate);
   const buffer = ctx.createBuffer(1, n, sampleRate);
-  // set() rather than copyToChannel, which refuses samples in shared memory (the analysis keeps the
-  // modulation source in a SharedArrayBuffer for its worker thread)
+  // set() rather than copyToChannel, which refuses samples in shared memory (a caller's source may
+  // lie in a SharedArrayBuffer)
   buffer.getChannelData(0).set(mono);
   const source = ctx.createBufferSource();
   source.buffer = buffer;

@@ -15,7 +15,7 @@ import { type WelchSpectrum, welchPsd } from '../../shared/dsp/welch.ts';
 import { InputError } from '../../shared/errors.ts';
 import type { PlanClip } from '../../shared/plan/evaluate.ts';
 import { type PulseSource, toPlanClip } from '../../shared/plan/plan-clip.ts';
-import { writeModulationSource } from '../analysis/shared-source.ts';
+import { writeModulationSource } from '../analysis/modulation-source.ts';
 import { type SampleBlocks, arraySamples } from '../../shared/preview/sample-blocks.ts';
 import { type DecodedClip, decodeAudioFile } from '../audio/decode.ts';
 import { PlanReducer } from '../render/closed-loop.ts';

@@ -121,9 +121,15 @@ export function drainRing<R>(ring: Ring, reducer: StreamReducer<R>): R {
       Atomics.notify(control, TAIL);
     }
   } finally {
-    Atomics.store(control, STOPPED, 1);
-    Atomics.notify(control, TAIL);
+    markStopped(ring);
   }
+}
+
+/** Marks the ring's consumer stopped (it will take no more samples), so the producer never waits for it. */
+export function markStopped(ring: Ring): void {
+  const control = new Int32Array(ring.control);
+  Atomics.store(control, STOPPED, 1);
+  Atomics.notify(control, TAIL);
 }
 
 /** Every (non-shared) ArrayBuffer under `v`, once each: the transfer list of a result. */

@@ -12,8 +12,9 @@
  *
  * How it is built: independent tasks (tasks.ts), grouped into a channel part (levels, true peak,
  * loudness, and the source's frame statistics, envelopes and histogram) and a spectrum part (Welch
- * spectrum, spectrogram, pitch), which analyzeClip runs in order on one thread. On the server,
- * server/analysis/analyze-parallel.ts runs the same tasks on two threads for the same result.
+ * spectrum, spectrogram, pitch), which analyzeClip runs in order on one thread. On the server, a
+ * file is analysed block by block as it is decoded, on two threads (stream.ts,
+ * server/analysis/analyze-stream.ts), for the same result bit for bit.
  */
 import { type AudioClip, modulationSource } from '../audio/clip.ts';
 import { DEFAULT_BANDS } from '../dsp/spectral-features.ts';

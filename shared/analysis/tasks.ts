@@ -1,11 +1,11 @@
 /**
- * The clip analysis cut into independent tasks, each one call of a shared/dsp measurement, so they
- * can run in any order and on any thread (analyze-clip.ts runs them in order in one thread;
- * server/analysis/analyze-parallel.ts shares them between the main thread and a worker). A task's
- * output depends only on its inputs, so where it ran never changes the analysis.
+ * The clip analysis cut into independent tasks, each one call of a shared/dsp measurement, which
+ * analyze-clip.ts runs in order in one thread on a whole clip, and the settings and figures they
+ * share with the analysis block by block (stream.ts), which must give the same result. A task's
+ * output depends only on its inputs.
  *
  * Channel tasks read every channel of the clip; source tasks read only the modulation source, one
- * Float32Array, which is what a worker thread gets (in shared memory).
+ * Float32Array.
  */
 import type { AudioClip } from '../audio/clip.ts';
 import { rmsEnvelope, sourceStatsPass } from '../dsp/envelope.ts';

@@ -109,20 +109,6 @@ describe('reading a WAV file block by block gives the samples of the whole file'
   });
 });
 
-describe('sharedChannels', () => {
-  it('puts each channel of a WAV in its own SharedArrayBuffer, with the same samples, from a file or from memory', async () => {
-    const bytes = buildWav({ channels: 2, sampleRate: 8000, containerBytes: 2, data: intBytes(interleave([codes(3000, 16), codes(3000, 16, 1)]), 2) });
-    const plain = await decodeAudioBytes(bytes);
-    for (const shared of [await decodeAudioFile(fileOf(bytes), { sharedChannels: true }), await decodeAudioBytes(bytes, { sharedChannels: true })]) {
-      expect(shared.channels).toHaveLength(2);
-      expect(shared.channels[0].buffer).toBeInstanceOf(SharedArrayBuffer);
-      expect(shared.channels[0].buffer).not.toBe(shared.channels[1].buffer);
-      shared.channels.forEach((c, i) => expect(Array.from(c)).toEqual(Array.from(plain.channels[i])));
-    }
-    expect(plain.channels[0].buffer).toBeInstanceOf(ArrayBuffer); // the default, which Web Audio accepts
-  });
-});
-
 describe('checks and errors of a WAV file read in blocks', () => {
   const mono16 = { channels: 1, sampleRate: 8000, containerBytes: 2 } as const;
 
