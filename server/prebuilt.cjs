@@ -90,10 +90,23 @@ async function build(dir) {
   writeFileSync(join(dir, MARK), '');
 }
 
-/** Removes older prebuilt folders (a failure here is harmless). */
+/** A prebuilt folder of other sources built this long ago is removed when a new one is built. */
+const STALE_MS = 24 * 3600 * 1000;
+
+/**
+ * Removes prebuilt folders of other sources built over a day ago (a checkout sharing node_modules,
+ * or a run still under way, may be using a recent one; a failure here is harmless).
+ */
 function prune(cache, keep) {
+  const now = Date.now();
   for (const e of readdirSync(cache)) {
-    if (e !== keep && e.startsWith('prebuilt-')) rmSync(join(cache, e), { recursive: true, force: true });
+    if (e === keep || !e.startsWith('prebuilt-')) continue;
+    const dir = join(cache, e);
+    try {
+      if (now - statSync(dir).mtimeMs > STALE_MS) rmSync(dir, { recursive: true, force: true });
+    } catch {
+      // gone already
+    }
   }
 }
 
