@@ -4,13 +4,15 @@
  * is no second copy: `coilcue <command> --help` is generated from the table, and a value the help
  * does not allow is refused with a message that names the flag, the rule and the value.
  *
- * Light on purpose (no imports beyond the error type): the command line parses a command's options
- * before it starts the analysis worker or loads the command's module, so a mistyped flag costs no
- * thread and no file handle.
+ * Light on purpose (no imports beyond the error type and Node's file system): the command line
+ * parses a command's options before it starts the analysis worker or loads the command's module,
+ * so a mistyped flag costs no thread and no file handle.
  *
  * Convention for shares: a share is a fraction 0…1 in every flag, in the help and in JSON; text
  * output prints it as a percentage with the word "%" (0.001 → "0.100 %").
  */
+import { access, stat } from 'node:fs/promises';
+import { resolve } from 'node:path';
 import { InputError } from '../../shared/errors.ts';
 
 /** A number: what it is, its unit, its range; `auto` names a word accepted instead of a number. */
@@ -300,8 +302,6 @@ export function helpText(c: CommandOptions, summary: string): string {
  * loads. Positionals count as inputs when the table says `positionals.input`.
  */
 export async function checkInputFiles(c: CommandOptions, parsed: ParsedOptions<OptionTable>, cwd: string): Promise<void> {
-  const { access, stat } = await import('node:fs/promises');
-  const { resolve } = await import('node:path');
   const named: [string, string][] = [];
   for (const [n, o] of Object.entries(c.options)) {
     const v = (parsed.values as Record<string, unknown>)[n];
