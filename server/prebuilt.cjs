@@ -23,10 +23,10 @@
 // Building takes ~1 s, once. If it fails (no esbuild, a read-only folder), null is returned and
 // the caller runs the sources through tsx as before. COILCUE_PREBUILT=off skips it.
 'use strict';
-const { createHash } = require('node:crypto');
+// (node:crypto and node:url are required where used: a worker thread that only asks for its
+// bundle, prebuiltWorker, should not spend start-up time compiling them.)
 const { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } = require('node:fs');
 const { join } = require('node:path');
-const { pathToFileURL } = require('node:url');
 
 const ROOT = join(__dirname, '..');
 /** Folders whose sources go into the bundles. */
@@ -43,7 +43,7 @@ const MARK = 'complete';
 
 /** sha-256 (16 hex digits) over every source file's path, size and mtime, and package.json. */
 function sourceKey() {
-  const h = createHash('sha256');
+  const h = require('node:crypto').createHash('sha256');
   h.update(readFileSync(join(ROOT, 'package.json')));
   for (const dir of SOURCE_DIRS) {
     const entries = readdirSync(join(ROOT, dir), { recursive: true, withFileTypes: true })
@@ -62,6 +62,7 @@ function sourceKey() {
 const ownUrl = {
   name: 'own-import-meta-url',
   setup(build) {
+    const { pathToFileURL } = require('node:url');
     build.onLoad({ filter: /\.ts$/ }, (args) => {
       const text = readFileSync(args.path, 'utf8');
       return { contents: text.split('import.meta.url').join(JSON.stringify(pathToFileURL(args.path).href)), loader: 'ts' };

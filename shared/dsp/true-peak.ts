@@ -349,8 +349,10 @@ export class TruePeakMeter {
     const runs = Math.ceil(len / CHUNK);
     if (this.blockMax.length < runs + 1) this.blockMax = new Float32Array(runs + 1);
     const blockMax = this.blockMax;
-    let sp = len <= MAX_BITS_PASS_LENGTH ? blockMaximaByBits(block, blockMax) : Number.NaN;
-    if (Number.isNaN(sp)) sp = blockMaximaPlain(block, blockMax);
+    // read from the meter's own copy: `block` may lie in shared memory, where V8 reads it slower
+    const own = buf.subarray(h, h + len);
+    let sp = len <= MAX_BITS_PASS_LENGTH ? blockMaximaByBits(own, blockMax) : Number.NaN;
+    if (Number.isNaN(sp)) sp = blockMaximaPlain(own, blockMax);
     if (sp > this.samplePeak) this.samplePeak = sp;
     // Run r: outputs at buffer positions h + 16r … h + 16r + 15, reading inputs 16r … h + 16r + 15,
     // i.e. block run r and the 11 inputs before it (the end of run r − 1, or the history).
