@@ -151,6 +151,7 @@ export class SetScreen extends LitElement {
       ${this.items.map((it, i) => {
         const r = result?.items[i];
         const first = result?.firstFailingItem === i;
+        const silent = result?.silentItems?.find((x) => x.index === i);
         return html`<li
           class="set-item ${this.dragFrom === i ? 'dragging' : ''} ${first ? 'first-failing' : ''}"
           draggable="true"
@@ -172,7 +173,9 @@ export class SetScreen extends LitElement {
           <span class="set-clip"><span class="pos">${i + 1}.</span> ${this.clipName(it.clipId)}</span>
           <span class="set-verdict">
             ${r
-              ? r.ok
+              ? silent && r.ok
+                ? html`<span class="bad-word">✗ silent</span>: no safe gain ${silent.evenCold ? 'on this rig' : 'from the temperature it starts at'}`
+                : r.ok
                 ? html`<span class="ok-word">✓ holds</span> at ${formatDb(r.gainDb, 'dB', true)}, peak ${r.peakJunctionC.toFixed(0)} °C`
                 : html`<span class="bad-word">✗ ${first ? 'first to fail' : 'fails'}</span> at ${formatDb(r.gainDb, 'dB', true)}:
                     ${r.failing.map((l) => `${LIMIT_WORDS[l.limit]}${l.role ? ` (${roleWords(l.role)})` : ''}`).join(', ')}`
@@ -210,7 +213,11 @@ export class SetScreen extends LitElement {
     return html`<section class="set-sheet" aria-labelledby="sheet-title">
       <h3 id="sheet-title">Set sheet: ${this.name}</h3>
       <p>Coil: ${coil?.name ?? '—'} · Driver: ${driver?.name ?? '—'} · ambient ${r.ambientC} °C ·
-        ${r.firstFailingItem === null ? '✓ every clip holds' : `✗ clip ${r.firstFailingItem + 1} is the first to fail`}</p>
+        ${r.firstFailingItem !== null
+          ? `✗ clip ${r.firstFailingItem + 1} is the first to fail`
+          : r.silentItems?.length
+            ? `✗ ${r.silentItems.map((x) => `clip ${x.index + 1}`).join(', ')} planned silent: no safe gain`
+            : '✓ every clip holds'}</p>
       <table>
         <thead>
           <tr><th scope="col">#</th><th scope="col">clip</th><th scope="col">gain</th><th scope="col">limiter ceiling</th><th scope="col">pre-emphasis</th><th scope="col">verdict</th><th scope="col">gap after</th></tr>
@@ -224,7 +231,7 @@ export class SetScreen extends LitElement {
               <td>${formatDb(it.gainDb, 'dB', true)}</td>
               <td>${p ? formatDb(p.document.limiterCeilingDbfs, 'dBFS') : formatDb(-it.gainDb, 'dBFS')}</td>
               <td>${p ? preEmphasisWords(p.document) : '—'}</td>
-              <td>${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C</td>
+              <td>${it.ok && r.silentItems?.some((x) => x.index === i) ? '✗ silent: no safe gain' : `${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C`}</td>
               <td>${formatClock(it.gapAfterS)}${it.minSafeGapAfterS != null && it.minSafeGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minSafeGapAfterS)} s)` : ''}</td>
             </tr>`;
           })}
@@ -279,10 +286,15 @@ export class SetScreen extends LitElement {
       ${out
         ? html`<section class="panel">
               <p class="set-answer">
-                ${out.plan.result.firstFailingItem === null
-                  ? html`<span class="ok-word">✓ The whole set holds</span>`
-                  : html`<span class="bad-word">✗ Clip ${out.plan.result.firstFailingItem + 1}, “${this.clipName(out.items[out.plan.result.firstFailingItem].clipId)}”, is the first to fail</span>`}
+                ${out.plan.result.firstFailingItem !== null
+                  ? html`<span class="bad-word">✗ Clip ${out.plan.result.firstFailingItem + 1}, “${this.clipName(out.items[out.plan.result.firstFailingItem].clipId)}”, is the first to fail</span>`
+                  : out.plan.result.silentItems?.length
+                    ? html`<span class="bad-word">✗ The set does not play as planned</span>`
+                    : html`<span class="ok-word">✓ The whole set holds</span>`}
               </p>
+              ${(out.plan.result.silentItems ?? []).map(
+                (x) => html`<p class="silent-note">Clip ${x.index + 1}, “${this.clipName(out.items[x.index].clipId)}”: ${x.note}.</p>`,
+              )}
               <set-temperature-chart .timeS=${out.plan.temperatures.timeS} .devices=${out.plan.temperatures.devices} .gaps=${out.plan.temperatures.gaps}></set-temperature-chart>
             </section>
             ${this.sheet(out)}`

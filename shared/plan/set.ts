@@ -18,6 +18,14 @@
  *   settles at while idling). A device that dissipates at idle (a linear pass device biased at half
  *   the supply) settles above ambient: it never cools to ambient, so recovery is measured against
  *   where it does settle. 0 when the clip ends within 5 K of that already (or below it).
+ *
+ * An item for which no gain keeps every limit (its advice is null) and that has no gain of its own
+ * is planned silent (−∞ dB) per item: silence holds every limit, so the item reads as holding, and
+ * `silentItems` lists it with the reason (whether it has no safe gain even from a cold start, or
+ * only from the temperature the set leaves it at), so a set is never reported as playable when one
+ * of its clips cannot be played. In common-gain mode ('min-advised') the common gain is the lowest
+ * advice among the items that have one, and such an item is played at it and shows which limit it
+ * breaks; only when no item has a safe gain is the common gain −∞ (all silent, all listed).
  */
 import type { CoilAtResonance, DriverSimulation, ThermalState } from '../physics/driver/types.ts';
 import type { DeviceRole, DriverProfile } from '../schemas/driver.ts';
@@ -65,9 +73,22 @@ export interface SetItemResult {
   recoversToC: { role: DeviceRole; junctionC: number }[];
 }
 
+/** An item planned silent because no gain keeps every limit for it. */
+export interface SilentItem {
+  /** Index in the set. */
+  index: number;
+  clip: string;
+  /** True when no gain is safe even from a cold start (ambient): the clip cannot be played on this rig; false: only from the temperature the set leaves it at. */
+  evenCold: boolean;
+  /** What it means and what to do, in words. */
+  note: string;
+}
+
 export interface SetResult {
   gainMode: 'per-item' | 'common';
   commonGainDb: number | null;
+  /** Items planned silent (−∞ dB) because no gain keeps every limit for them (module comment). */
+  silentItems: SilentItem[];
   ambientC: number;
   items: SetItemResult[];
   /** Index of the first item at which a limit fails, or null. */
@@ -171,6 +192,14 @@ export function minSafeGapS(
   return { gapS: Math.round(hi * GAP_FRAME_S * 10) / 10, note: null };
 }
 
+/** The entry of silentItems for item `index` (module comment). */
+function silentItem(index: number, clip: PlanClip, evenCold: boolean): SilentItem {
+  const note = evenCold
+    ? 'no gain keeps every limit even from a cold start: this clip cannot be played on this coil and driver; it is planned silent. Drop it from the set, or change the rig'
+    : 'no gain keeps every limit from the temperature the set leaves it at, though one does from cold: it is planned silent. Give it a longer gap before it, or lower the gains of the clips before it';
+  return { index, clip: clip.name, evenCold, note };
+}
+
 /**
  * Plays a set (module comment). `commonGainDb`: 'min-advised' plays every item at the lowest of
  * the per-item advised gains; a number plays every item at that gain; undefined uses each item's
@@ -187,12 +216,15 @@ export function planSet(
   let common: number | null = typeof opts.commonGainDb === 'number' ? opts.commonGainDb : null;
   if (opts.commonGainDb === 'min-advised') {
     const first = planSet(items, coil, driver, settings, { safeGaps: false });
-    const advised = first.items.map((i) => i.advisedGainDb);
-    common = advised.some((a) => a === null) ? -Infinity : Math.min(...(advised as number[]));
+    // The lowest advice among the items that have one: an item with none is then played at it and
+    // shows the limit it breaks, rather than silencing the whole set.
+    const advised = first.items.map((i) => i.advisedGainDb).filter((a): a is number => a !== null);
+    common = advised.length === 0 ? -Infinity : Math.min(...advised);
   }
   let state: ThermalState[] | undefined;
   let firstFailingItem: number | null = null;
   const out: SetItemResult[] = [];
+  const silentItems: SilentItem[] = [];
   const ends: ThermalState[][] = [];
   const idleC = idleSteadyJunctionC(driver, coil, settings.ambientC);
   items.forEach((item, index) => {
@@ -211,6 +243,9 @@ export function planSet(
     ends.push(end);
     const failing = e.limits.filter((l) => !l.ok);
     if (failing.length && firstFailingItem === null) firstFailingItem = index;
+    if (gainDb === -Infinity && advice.advisedGainDb === null && item.gainDb === null) {
+      silentItems.push(silentItem(index, item.clip, state === undefined || adviseGain(item.clip, coil, driver, settings).advisedGainDb === null));
+    }
     out.push({
       clip: item.clip.name,
       advisedGainDb: advice.advisedGainDb,
@@ -242,6 +277,7 @@ export function planSet(
   return {
     gainMode: common === null ? 'per-item' : 'common',
     commonGainDb: common,
+    silentItems,
     ambientC: settings.ambientC,
     items: out,
     firstFailingItem,

@@ -219,7 +219,7 @@ export const SetRequestSchema = Type.Object(
     coilId: Id,
     driverId: Id,
     items: Type.Array(SetItemSchema, { minItems: 1, maxItems: 500 }),
-    commonGain: Type.Optional(Type.Boolean({ description: 'play every clip at the lowest advised gain' })),
+    commonGain: Type.Optional(Type.Boolean({ description: 'play every clip at the lowest advised gain among the clips that have one (a clip with none is played at it too, and shows what it breaks)' })),
   },
   { additionalProperties: false },
 );

@@ -110,11 +110,15 @@ export function formatSet(s: SetResult): string {
         ? ` — ${idleWarm.map((d) => d.role).join(' and ')} ${idleWarm.length > 1 ? 'dissipate' : 'dissipates'} even with no music (the rail idles at half the supply), so ${idleWarm.length > 1 ? 'they never cool' : 'it never cools'} to ambient; recovery below is measured against this idle temperature`
         : ' (no loss at idle: the devices cool toward ambient)'),
   );
+  const silent = new Map(s.silentItems.map((x) => [x.index, x]));
   s.items.forEach((it, i) => {
+    const verdict = !it.ok ? `FAILS ${it.failing.map((l) => limitLabel(l)).join(', ')}` : silent.has(i) ? 'SILENT: no safe gain' : 'all limits hold';
     out.push(
       `${String(i + 1).padStart(2)}. ${it.clip}: gain ${Number.isFinite(it.gainDb) ? it.gainDb.toFixed(1) : '-inf'} dB (advised ${it.advisedGainDb === null ? 'none safe' : it.advisedGainDb.toFixed(1)}), ` +
-        `starts ${temps(it.startJunctionC)}, peak ${f1(it.peakJunctionC)} °C, ${it.ok ? 'all limits hold' : `FAILS ${it.failing.map((l) => limitLabel(l)).join(', ')}`}`,
+        `starts ${temps(it.startJunctionC)}, peak ${f1(it.peakJunctionC)} °C, ${verdict}`,
     );
+    const why = silent.get(i);
+    if (why) out.push(`    ${why.note}`);
     const last = i + 1 === s.items.length;
     const safe = last
       ? 'last clip'
@@ -131,7 +135,10 @@ export function formatSet(s: SetResult): string {
           : `back within ${s.recoveredWithinK} K of its idle temperature (${temps(it.recoversToC)}) after ${it.recoveryGapS.toFixed(1)} s`;
     out.push(`    gap ${it.gapAfterS} s; ${safe}; recovery: ${rec}`);
   });
-  out.push(s.firstFailingItem === null ? 'every clip keeps every limit' : `first failing clip: ${s.firstFailingItem + 1}`);
+  const silentList = s.silentItems.map((x) => x.index + 1).join(', ');
+  if (s.firstFailingItem !== null) out.push(`first failing clip: ${s.firstFailingItem + 1}`);
+  else if (s.silentItems.length) out.push(`the set does not play as planned: clip${s.silentItems.length > 1 ? 's' : ''} ${silentList} ${s.silentItems.length > 1 ? 'have' : 'has'} no safe gain and ${s.silentItems.length > 1 ? 'are' : 'is'} planned silent; the others keep every limit`);
+  else out.push('every clip keeps every limit');
   return out.join('\n') + '\n';
 }
 

@@ -84,7 +84,7 @@ export const PLAN_OPTIONS = defineCommand({
       choices: ['zero-crossing', 'pitch-locked'],
       default: 'zero-crossing',
     },
-    'common-gain': { type: 'flag', what: 'with --set: play every clip at the lowest of the advised gains' },
+    'common-gain': { type: 'flag', what: 'with --set: play every clip at the lowest of the advised gains (a clip with no safe gain is played at it too, and shows what it breaks)' },
   },
   notes: ['give --clip, --coil and --driver for one clip, or --set for a whole set'],
   check(v) {

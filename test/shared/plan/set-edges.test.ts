@@ -2,8 +2,8 @@
  * A set (shared/plan/set.ts) at its edges: the idle steady state of a driver whose slowest time
  * constant is its heat sink and whose loss grows with temperature (against the closed-form fixed
  * point), a junction exactly RECOVERED_WITHIN_K above its target, the two reasons no gap can be
- * enough (a thermal limit, and one no cooling helps), an item with no safe gain (played as silence,
- * per item and in common-gain mode), the first failing item when several fail, the safe-gap search
+ * enough (a thermal limit, and one no cooling helps), an item with no safe gain (planned silent per
+ * item and listed with its reason; played at the others' lowest advice in common-gain mode), the first failing item when several fail, the safe-gap search
  * switched off and on, and the common-gain pre-pass that skips it (counted through the evaluations it
  * runs). Expected values are derived by hand or from the module's own documented definitions.
  */
@@ -11,7 +11,7 @@ import { describe, expect, it, vi } from 'vitest';
 import { adviseGain } from '../../../shared/plan/advise.ts';
 import { evaluateAtGain, planSettings } from '../../../shared/plan/evaluate.ts';
 import { MAX_RECOVERY_GAP_S, RECOVERED_WITHIN_K, idleSteadyJunctionC, minSafeGapS, planSet, recoveryGapS } from '../../../shared/plan/set.ts';
-import { COIL, halfBridgeI2rW, linearDriver, mosfet, planClip, pulseDriver, tone } from './fixtures.ts';
+import { COIL, halfBridgeI2rW, linearDriver, mosfet, planClip, pulseDriver, silence, tone } from './fixtures.ts';
 
 // Count the evaluations a set runs (planSet and adviseGain both call evaluateAtGain); the function
 // itself is the real one.
@@ -115,29 +115,60 @@ describe('planSet: an item with no safe gain', () => {
     { clip: HOT, gapAfterS: 0, gainDb: null },
   ];
 
-  it('plays it as silence (−∞ dB) per item, evaluated as silence from the state it starts in', () => {
+  it('plans it silent (−∞ dB) per item, evaluated as silence from the state it starts in, and lists it with the reason', () => {
     expect(adviseGain(HOT, COIL, STRONG, s).advisedGainDb).toBeNull();
     const set = planSet(items, COIL, STRONG, s);
     const [first, hot] = set.items;
     expect(first.advisedGainDb).not.toBeNull();
     expect(hot.advisedGainDb).toBeNull();
     expect(hot.gainDb).toBe(-Infinity);
-    // Silence over-modulates nothing, and the strong sinks hold at idle: the item holds every limit.
+    // Silence over-modulates nothing, and the strong sinks hold at idle: the item holds every limit…
     expect(hot.ok).toBe(true);
     expect(hot.failing).toEqual([]);
     expect(set.firstFailingItem).toBeNull();
+    // …but it cannot be played, and the set says so: no gain is safe even from cold (HOT over-modulates at any gain).
+    expect(set.silentItems).toEqual([{ index: 1, clip: 'hot', evenCold: true, note: expect.stringMatching(/cannot be played on this coil and driver; it is planned silent/) }]);
     // The same as evaluating silence from the first item's end state (gap 0).
     const end = evaluateAtGain(TONE(0.5), COIL, STRONG, first.gainDb, s).sim.finalState;
     const silent = evaluateAtGain(HOT, COIL, STRONG, -Infinity, s, { initial: end });
     hot.devices.forEach((dev, k) => expect(Math.abs(dev.peakJunctionC - silent.sim.devices[k].peakJunctionC)).toBeLessThan(1e-9));
   });
 
-  it("makes the common gain silence too in 'min-advised' mode: the lowest advice is none", () => {
+  it("plays it at the common gain in 'min-advised' mode (the lowest advice among the items that have one), where it shows what it breaks", () => {
     const set = planSet(items, COIL, STRONG, s, { commonGainDb: 'min-advised' });
+    const alone = adviseGain(TONE(0.5), COIL, STRONG, s).advisedGainDb!;
     expect(set.gainMode).toBe('common');
+    expect(set.commonGainDb).toBe(alone);
+    expect(set.items.map((i) => i.gainDb)).toEqual([alone, alone]);
+    expect(set.items[0].ok).toBe(true);
+    expect(set.items[1].ok).toBe(false);
+    expect(set.items[1].failing.map((l) => l.limit)).toContain('over-modulation');
+    expect(set.firstFailingItem).toBe(1);
+    expect(set.silentItems).toEqual([]);
+  });
+
+  it("silences the whole set in 'min-advised' mode only when no item has a safe gain, and lists every item", () => {
+    const set = planSet([{ clip: HOT, gapAfterS: 0, gainDb: null }, { clip: HOT, gapAfterS: 0, gainDb: null }], COIL, STRONG, s, { commonGainDb: 'min-advised' });
     expect(set.commonGainDb).toBe(-Infinity);
-    expect(set.items.map((i) => i.gainDb)).toEqual([-Infinity, -Infinity]);
     expect(set.items.map((i) => i.ok)).toEqual([true, true]);
+    expect(set.silentItems.map((x) => [x.index, x.evenCold])).toEqual([[0, true], [1, true]]);
+  });
+
+  it('says when only the temperature the set leaves an item at rules out every gain (a longer gap would help)', () => {
+    // A rail-linear pass device idling at V_s²/4·g on a slow sink (3 K/W, 8 J/K, τ ≈ 24 s): idle
+    // alone would settle it above its limit, so after 120 s of the first item (silence at −40 dB)
+    // the next starts too hot for any gain, though from cold a 1 s tone has a safe gain.
+    const slowHot = linearDriver(
+      mosfet('bridge', { rKPerW: 1, tauS: 0.004, sinkToAmbientKPerW: 14 }, { rdsOnOhm: 1 }),
+      mosfet('pass', { rKPerW: 0.5, tauS: 0.004, sinkToAmbientKPerW: 3, sinkHeatCapacityJPerK: 8 }),
+    );
+    const hs = planSettings(slowHot);
+    const short = TONE(0.3);
+    expect(adviseGain(short, COIL, slowHot, hs).advisedGainDb).not.toBeNull();
+    const set = planSet([{ clip: planClip('idle', silence(120)), gapAfterS: 0, gainDb: -40 }, { clip: short, gapAfterS: 0, gainDb: null }], COIL, slowHot, hs);
+    expect(set.items[1].advisedGainDb).toBeNull();
+    expect(set.items[1].gainDb).toBe(-Infinity);
+    expect(set.silentItems).toEqual([{ index: 1, clip: short.name, evenCold: false, note: expect.stringMatching(/though one does from cold: it is planned silent\. Give it a longer gap before it/) }]);
   });
 });
 
