@@ -92,11 +92,12 @@ async function build(dir) {
 }
 
 /** A prebuilt folder of other sources built this long ago is removed when a new one is built. */
-const STALE_MS = 24 * 3600 * 1000;
+const STALE_MS = 3600 * 1000;
 
 /**
- * Removes prebuilt folders of other sources built over a day ago (a checkout sharing node_modules,
- * or a run still under way, may be using a recent one; a failure here is harmless).
+ * Removes prebuilt folders of other sources built over an hour ago (a checkout sharing
+ * node_modules, or a run still under way, may be using a recent one; a worker that finds its folder
+ * gone loads the sources instead; a failure here is harmless).
  */
 function prune(cache, keep) {
   const now = Date.now();
