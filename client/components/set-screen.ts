@@ -210,6 +210,9 @@ export class SetScreen extends LitElement {
     const r = out.plan.result;
     const coil = this.coils.find((c) => c.id === this.coilId);
     const driver = this.drivers.find((d) => d.id === this.driverId);
+    // The keep-out needs the driver's supply (the coil's voltage bound): the plans have it; a coil's
+    // own report, made without a driver, may not.
+    const keepOutM = out.plans.find((p) => p?.document.keepOut.keepOutM != null)?.document.keepOut.keepOutM ?? coil?.report.keepOutM ?? null;
     return html`<section class="set-sheet" aria-labelledby="sheet-title">
       <h3 id="sheet-title">Set sheet: ${this.name}</h3>
       <p>Coil: ${coil?.name ?? '—'} · Driver: ${driver?.name ?? '—'} · ambient ${r.ambientC} °C ·
@@ -220,7 +223,7 @@ export class SetScreen extends LitElement {
             : '✓ every clip holds'}</p>
       <table>
         <thead>
-          <tr><th scope="col">#</th><th scope="col">clip</th><th scope="col">gain</th><th scope="col">limiter ceiling</th><th scope="col">pre-emphasis</th><th scope="col">verdict</th><th scope="col">gap after</th></tr>
+          <tr><th scope="col">#</th><th scope="col">clip</th><th scope="col">verdict</th><th scope="col">gain</th><th scope="col">gap after</th><th scope="col">limiter ceiling</th><th scope="col">pre-emphasis</th></tr>
         </thead>
         <tbody>
           ${r.items.map((it, i) => {
@@ -228,16 +231,16 @@ export class SetScreen extends LitElement {
             return html`<tr>
               <td>${i + 1}</td>
               <td>${this.clipName(out.items[i].clipId)}</td>
+              <td>${it.ok && r.silentItems?.some((x) => x.index === i) ? '✗ silent: no safe gain' : `${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C`}</td>
               <td>${formatDb(it.gainDb, 'dB', true)}</td>
+              <td>${formatClock(it.gapAfterS)}${it.minSafeGapAfterS != null && it.minSafeGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minSafeGapAfterS)} s)` : ''}</td>
               <td>${p ? formatDb(p.document.limiterCeilingDbfs, 'dBFS') : formatDb(-it.gainDb, 'dBFS')}</td>
               <td>${p ? preEmphasisWords(p.document) : '—'}</td>
-              <td>${it.ok && r.silentItems?.some((x) => x.index === i) ? '✗ silent: no safe gain' : `${it.ok ? '✓ holds' : '✗ fails'}, peak ${it.peakJunctionC.toFixed(0)} °C`}</td>
-              <td>${formatClock(it.gapAfterS)}${it.minSafeGapAfterS != null && it.minSafeGapAfterS > it.gapAfterS ? ` (needs ${roundGapUpS(it.minSafeGapAfterS)} s)` : ''}</td>
             </tr>`;
           })}
         </tbody>
       </table>
-      ${coil?.report.keepOutM != null ? html`<p>Keep-out distance: ${formatSi(coil.report.keepOutM, 'm')} from the coil and its arcs.</p>` : nothing}
+      ${keepOutM != null ? html`<p>Keep-out distance: ${formatSi(keepOutM, 'm')} from the coil and its arcs.</p>` : nothing}
       <h4>Cautions</h4>
       <ul class="sheet-cautions">
         ${(this.cautions?.items.map((c) => c.text) ?? coil?.report.cautions ?? []).map((t) => html`<li>${t}</li>`)}

@@ -201,6 +201,8 @@ describe('the web page in Chromium', () => {
     expect(await page.locator('.set-item .set-verdict').first().textContent()).toMatch(/✓ holds|✗/);
     expect(await page.locator('.set-sheet tbody tr').count()).toBe(2);
     expect(await page.textContent('.set-sheet')).toMatch(/Cautions/);
+    // the keep-out distance a person takes to the bench, from the plans (it needs the driver's supply)
+    expect(await page.textContent('.set-sheet')).toMatch(/Keep-out distance: \d[\d.]* (m|cm|mm) from the coil and its arcs/);
     await page.emulateMedia({ media: 'print' });
     await page.screenshot({ path: join(ARTIFACTS, 'set-sheet-print.png'), fullPage: true });
     expect(await page.isVisible('header.top')).toBe(false);
