@@ -30,6 +30,9 @@ import { writeModulationSource } from './modulation-source.ts';
 import { AnalysisWorker, type Reply, startAnalysisWorker } from './worker-handle.ts';
 import { type StreamJob, epochMs } from './worker-tasks.ts';
 
+/** Longest piece of the source mixed and fed at once, frames (the WAV decoder's block of 16-bit stereo). */
+const SOURCE_BLOCK = 1 << 18;
+
 /** What analyzeFileStream reads besides analyzeClip's options. */
 export interface StreamAnalyzeOptions extends Omit<AnalyzeOptions, 'onProgress'> {
   /** Fraction 0…1 of the whole job and the stage's name ('analysing' while decoding, then 'spectrum' while the worker ends, then 'done'). */
@@ -138,15 +141,21 @@ async function onePass(path: string, opts: StreamAnalyzeOptions, worker: Analysi
     },
     onFrames: (chs, from, to) => {
       const st = pass.st!;
+      // The blocks arrive as frames 0…len−1 of block-long arrays (a WAV file), or decoded whole as
+      // the whole clip (the compressed formats): that is fed in pieces of SOURCE_BLOCK frames, so
+      // the source is never mixed whole beside the decoded channels.
       const len = to - from;
-      // the blocks arrive as frames 0…len−1 of block-long arrays (or, decoded whole, as the whole clip)
-      if (source.length < len) source = new Float32Array(len);
-      writeModulationSource(chs, channel, source, 0, len);
-      const block = source.subarray(0, len);
-      st.part.add(chs, len, block);
-      if (st.ring !== null && !st.lost) st.lost = !st.ring.add(block, len);
-      st.local?.add(block, len);
-      toCaller?.(block);
+      for (let at = 0; at < len; at += SOURCE_BLOCK) {
+        const n = Math.min(SOURCE_BLOCK, len - at);
+        const piece = at === 0 && n === len ? chs : chs.map((c) => c.subarray(at, at + n));
+        if (source.length < n) source = new Float32Array(n);
+        writeModulationSource(piece, channel, source, 0, n);
+        const block = source.subarray(0, n);
+        st.part.add(piece, n, block);
+        if (st.ring !== null && !st.lost) st.lost = !st.ring.add(block, n);
+        st.local?.add(block, n);
+        toCaller?.(block);
+      }
     },
   });
   const st = pass.st;
