@@ -342,7 +342,8 @@ class ColumnSums {
   private readonly means: Float64Array;
   private readonly timesS: Float64Array;
   private readonly db: Float32Array;
-  private readonly sumW2: number;
+  /** Σ w² of the periodic Hann window of the plan's size (Welch's density scaling uses the same). */
+  readonly sumW2: number;
   private readonly binHz: number;
   private column = 0;
   private frames = 0;
@@ -479,8 +480,6 @@ export class WelchSpectrogramStream {
     if (this.next < p.segments) {
       loneSegment(this.fft!, this.buf, this.next * p.hop, this.next, p.hop, this.w, new Float64Array(this.fft!.bins), this.acc, undefined, this.columns!.groupSum);
     }
-    let sumW2 = 0;
-    for (let i = 0; i < p.size; i++) sumW2 += this.w[i] * this.w[i];
-    return { welch: densityOf(this.acc, p.segments, this.sampleRate, sumW2, p.size), spectrogram: this.columns!.finish() };
+    return { welch: densityOf(this.acc, p.segments, this.sampleRate, this.columns!.sumW2, p.size), spectrogram: this.columns!.finish() };
   }
 }
