@@ -29,7 +29,6 @@ export type ChannelTask = (typeof CHANNEL_TASKS)[number];
 export const SOURCE_TASKS = ['source levels', 'frames', 'spectrum', 'pitch'] as const;
 export type SourceTask = (typeof SOURCE_TASKS)[number];
 
-
 /** What each task returns. */
 export interface TaskOutputs {
   levels: LevelReport;
